@@ -1,0 +1,109 @@
+#pragma once
+/// \file
+/// Ridge (Tikhonov-regularised least squares) layer solver.
+///
+/// Solver contract: `solve(Phi, R, lambda, B)` writes the amplitudes B that
+/// minimise (1/N) |Phi B - R|_F^2 + lambda |B|_F^2 for an N x P feature
+/// matrix Phi and N x m targets R. All m outputs share one factorisation.
+
+#include <cmath>
+#include <string>
+
+#include "wavestack/core/error.hpp"
+#include "wavestack/core/types.hpp"
+#include "wavestack/core/validate.hpp"
+
+namespace wavestack {
+
+/// Gram matrix + Cholesky when P is small against N and the regularised Gram
+/// matrix is well conditioned; column-pivoted Householder QR of the stacked
+/// system [Phi / sqrt(N); sqrt(lambda) I] otherwise. QR works on Phi itself,
+/// so its error grows with cond(Phi) instead of cond(Phi)^2.
+///
+/// The object keeps its Gram and factor buffers between calls, so a sampler
+/// that re-solves thousands of times with the same shape allocates once.
+class RidgeSolver {
+public:
+    /// Which factorisation the last solve used.
+    enum class Path { cholesky, qr };
+
+    struct Settings {
+        /// QR is used when P > qrWidthFraction * N ("P not small against N").
+        double qrWidthFraction = 0.25;
+        /// QR is used when Cholesky's reciprocal condition estimate of the
+        /// regularised Gram matrix falls below this. Cholesky's relative
+        /// error in the amplitudes is about eps / rcond, so 1e-8 keeps it
+        /// near 1e-8 or better.
+        double minReciprocalCondition = 1e-8;
+    };
+
+    RidgeSolver() = default;
+    explicit RidgeSolver(const Settings& settings) : m_settings(settings) {}
+
+    void solve(const MatrixView& features, const MatrixView& targets, double lambda, Matrix& amplitudes)
+    {
+        const Index points = features.rows();
+        const Index width = features.cols();
+        if (targets.rows() != points)
+            throw InvalidInput("RidgeSolver: features have " + std::to_string(points) + " rows but targets have " +
+                               std::to_string(targets.rows()));
+        if (points == 0 || width == 0)
+            throw InvalidInput("RidgeSolver: empty feature matrix (" + std::to_string(points) + " x " +
+                               std::to_string(width) + ")");
+        detail::requireNonNegative(lambda, "RidgeSolver: lambda");
+
+        const double scale = 1.0 / static_cast<double>(points);
+        if (static_cast<double>(width) <= m_settings.qrWidthFraction * static_cast<double>(points)) {
+            // One triangle of Phi^T Phi by a symmetric rank-N update.
+            m_gram.resize(width, width);
+            m_gram.triangularView<Eigen::Lower>().setZero();
+            m_gram.selfadjointView<Eigen::Lower>().rankUpdate(features.transpose(), scale);
+            m_gram.diagonal().array() += lambda;
+            m_cholesky.compute(m_gram);
+            if (m_cholesky.info() == Eigen::Success && m_cholesky.rcond() >= m_settings.minReciprocalCondition) {
+                amplitudes.noalias() = features.transpose() * targets;
+                amplitudes *= scale;
+                m_cholesky.solveInPlace(amplitudes);
+                m_lastPath = Path::cholesky;
+                requireFiniteResult(amplitudes);
+                return;
+            }
+        }
+        solveByQr(features, targets, lambda, amplitudes);
+    }
+
+    Path lastPath() const { return m_lastPath; }
+    const Settings& settings() const { return m_settings; }
+
+private:
+    void solveByQr(const MatrixView& features, const MatrixView& targets, double lambda, Matrix& amplitudes)
+    {
+        const Index points = features.rows();
+        const Index width = features.cols();
+        const double rowScale = 1.0 / std::sqrt(static_cast<double>(points));
+        const Index extra = lambda > 0.0 ? width : 0;
+        Matrix stacked(points + extra, width);
+        Matrix rhs = Matrix::Zero(points + extra, targets.cols());
+        stacked.topRows(points) = rowScale * features;
+        rhs.topRows(points) = rowScale * targets;
+        if (extra > 0)
+            stacked.bottomRows(extra) = std::sqrt(lambda) * Matrix::Identity(width, width);
+        Eigen::ColPivHouseholderQR<Matrix> qr(stacked);
+        amplitudes = qr.solve(rhs);
+        m_lastPath = Path::qr;
+        requireFiniteResult(amplitudes);
+    }
+
+    static void requireFiniteResult(const Matrix& amplitudes)
+    {
+        if (!amplitudes.allFinite())
+            throw NumericalError("RidgeSolver: the amplitudes are not finite; the features or targets overflow");
+    }
+
+    Settings m_settings;
+    Matrix m_gram;
+    Eigen::LLT<Matrix, Eigen::Lower> m_cholesky;
+    Path m_lastPath = Path::cholesky;
+};
+
+}  // namespace wavestack

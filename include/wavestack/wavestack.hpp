@@ -1,0 +1,20 @@
+#pragma once
+/// \file
+/// The one header users include.
+///
+/// wavestack fits fast surrogate models (random-Fourier-feature networks) to
+/// samples of an expensive function, for simulation codes to evaluate in their
+/// inner loops. Start with wavestack::fit and wavestack::Network.
+
+#include "wavestack/check/metrics.hpp"
+#include "wavestack/core/error.hpp"
+#include "wavestack/core/random.hpp"
+#include "wavestack/core/types.hpp"
+#include "wavestack/features/fourier_map.hpp"
+#include "wavestack/model/layer.hpp"
+#include "wavestack/model/network.hpp"
+#include "wavestack/model/scaler.hpp"
+#include "wavestack/sampling/fixed_sampler.hpp"
+#include "wavestack/sampling/gaussian_sampler.hpp"
+#include "wavestack/solve/ridge_solver.hpp"
+#include "wavestack/train/fit.hpp"
