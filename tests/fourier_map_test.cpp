@@ -5,7 +5,7 @@
 
 #include <wavestack/core/random.hpp>
 #include <wavestack/detail/sincos.hpp>
-#include <wavestack/features/fourier_map.hpp>
+#include <wavestack/features/feature_group.hpp>
 
 using namespace wavestack;
 
@@ -46,8 +46,10 @@ TEST_CASE("the feature matrix holds cosines then sines of w_k . u")
     for (Index i = 0; i < k; ++i)
         for (Index j = 0; j < d; ++j)
             w(i, j) = 3.0 * random.normal();
-    Matrix phi(n, FourierMap::featuresPerParameter * k);
-    FourierMap::features(u, w, phi);
+    const FeatureGroup group{FeatureKind::fourier, w};
+    Matrix phi(n, group.featureCount());
+    REQUIRE(phi.cols() == 2 * k);
+    group.features(u, phi);
     for (Index i = 0; i < n; ++i)
         for (Index f = 0; f < k; ++f) {
             double dot = 0.0;

@@ -23,9 +23,10 @@ Network randomNetwork(Index d, Index m, Index k, std::uint64_t seed)
         mean[o] = random.normal();
         deviation[o] = 0.5 + random.uniform();
     }
-    FourierLayer layer{Matrix(k, d), Matrix(2 * k, m)};
-    for (Index i = 0; i < layer.frequencies.size(); ++i)
-        layer.frequencies.data()[i] = 3.0 * random.normal();
+    Layer layer{{FeatureGroup{FeatureKind::fourier, Matrix(k, d)}}, Matrix(2 * k, m)};
+    Matrix& w = layer.groups[0].parameters;
+    for (Index i = 0; i < w.size(); ++i)
+        w.data()[i] = 3.0 * random.normal();
     for (Index i = 0; i < layer.amplitudes.size(); ++i)
         layer.amplitudes.data()[i] = random.normal() / std::sqrt(double(k));
     return Network(InputScaler(InputBox{lower, upper}), OutputScaler(mean, deviation), layer);
@@ -47,7 +48,7 @@ TEST_CASE("a one-frequency network evaluates to the value worked by hand")
     Matrix w(1, 1), b(2, 1);
     w << 2.0;
     b << 0.5, 0.25;
-    const Network net(InputScaler(InputBox{lower, upper}), OutputScaler(mean, deviation), FourierLayer{w, b});
+    const Network net(InputScaler(InputBox{lower, upper}), OutputScaler(mean, deviation), Layer{{FeatureGroup{FeatureKind::fourier, w}}, b});
     Vector x(1);
     x << 1.5;
     CHECK(net.evaluate(x)[0] == doctest::Approx(1.9610377982720880).epsilon(1e-15));
@@ -85,7 +86,7 @@ TEST_CASE("evaluation equals the model's formula computed naively")
     for (Index o = 0; o < 2; ++o) {
         double sum = 0.0;
         for (Index k = 0; k < 17; ++k) {
-            const double angle = layer.frequencies.row(k).dot(u);
+            const double angle = layer.groups[0].parameters.row(k).dot(u);
             sum += layer.amplitudes(k, o) * std::cos(angle) + layer.amplitudes(17 + k, o) * std::sin(angle);
         }
         const double expected = net.outputScaler().mean()[o] + net.outputScaler().deviation()[o] * sum;
@@ -98,6 +99,6 @@ TEST_CASE("wrong sizes are rejected with the counts in the message")
     const Network net = randomNetwork(3, 1, 4, 41);
     CHECK_THROWS_WITH_AS(net.evaluate(Vector(2)), doctest::Contains("2"), InvalidInput);
     CHECK_THROWS_WITH_AS(net.evaluateBatch(Matrix(5, 4)), doctest::Contains("4"), InvalidInput);
-    FourierLayer bad{Matrix(4, 3), Matrix(7, 1)};
+    Layer bad{{FeatureGroup{FeatureKind::fourier, Matrix(4, 3)}}, Matrix(7, 1)};
     CHECK_THROWS_AS(Network(net.inputScaler(), net.outputScaler(), bad), InvalidInput);
 }

@@ -52,11 +52,11 @@ TEST_CASE("ridge solutions match Eigen's SVD on well-conditioned problems (Chole
     for (int trial = 0; trial < 5; ++trial) {
         const Matrix phi = randomMatrix(400, 40, random);
         const Matrix r = randomMatrix(400, 3, random);
-        RidgeSolver solver;
+        RidgeSolver<> solver;
         Matrix b;
         for (double lambda : {0.0, 1e-8, 1e-3, 1.0}) {
             solver.solve(phi, r, lambda, b);
-            CHECK(solver.lastPath() == RidgeSolver::Path::cholesky);
+            CHECK(solver.lastPath() == SolvePath::cholesky);
             CHECK(relativeDifference(b, svdReference(phi, r, lambda)) < 1e-9);
         }
     }
@@ -72,11 +72,11 @@ TEST_CASE("ridge solutions match Eigen's SVD on ill-conditioned problems (QR pat
         });
         const Matrix phi = withSingularValues(300, singular, random);
         const Matrix r = randomMatrix(300, 2, random);
-        RidgeSolver solver;
+        RidgeSolver<> solver;
         Matrix b;
         for (double lambda : {1e-16, 1e-13}) {
             solver.solve(phi, r, lambda, b);
-            CHECK(solver.lastPath() == RidgeSolver::Path::qr);
+            CHECK(solver.lastPath() == SolvePath::qr);
             CHECK(relativeDifference(b, svdReference(phi, r, lambda)) < 1e-9);
         }
     }
@@ -87,10 +87,10 @@ TEST_CASE("QR is used when the width is not small against the number of points")
     Random random(13);
     const Matrix phi = randomMatrix(100, 60, random);
     const Matrix r = randomMatrix(100, 1, random);
-    RidgeSolver solver;
+    RidgeSolver<> solver;
     Matrix b;
     solver.solve(phi, r, 1e-6, b);
-    CHECK(solver.lastPath() == RidgeSolver::Path::qr);
+    CHECK(solver.lastPath() == SolvePath::qr);
     CHECK(relativeDifference(b, svdReference(phi, r, 1e-6)) < 1e-9);
 }
 
@@ -100,10 +100,10 @@ TEST_CASE("a singular Gram matrix falls back to QR instead of failing")
     Matrix phi = randomMatrix(200, 10, random);
     phi.col(3) = phi.col(7);  // two identical features
     const Matrix r = randomMatrix(200, 1, random);
-    RidgeSolver solver;
+    RidgeSolver<> solver;
     Matrix b;
     solver.solve(phi, r, 0.0, b);
-    CHECK(solver.lastPath() == RidgeSolver::Path::qr);
+    CHECK(solver.lastPath() == SolvePath::qr);
     // Any least-squares solution leaves the residual orthogonal to the features.
     CHECK((phi.transpose() * (phi * b - r)).norm() < 1e-9 * r.norm());
 }
@@ -113,7 +113,7 @@ TEST_CASE("several outputs share one factorisation and equal separate solves")
     Random random(15);
     const Matrix phi = randomMatrix(300, 20, random);
     const Matrix r = randomMatrix(300, 4, random);
-    RidgeSolver solver;
+    RidgeSolver<> solver;
     Matrix together, alone;
     solver.solve(phi, r, 1e-4, together);
     for (Index j = 0; j < r.cols(); ++j) {
@@ -127,7 +127,7 @@ TEST_CASE("bad arguments are rejected with a clear error")
     Random random(16);
     const Matrix phi = randomMatrix(50, 5, random);
     const Matrix r = randomMatrix(50, 1, random);
-    RidgeSolver solver;
+    RidgeSolver<> solver;
     Matrix b;
     CHECK_THROWS_WITH_AS(solver.solve(phi, r, -1.0, b), doctest::Contains("lambda"), InvalidInput);
     CHECK_THROWS_WITH_AS(solver.solve(phi, r.topRows(49), 0.0, b), doctest::Contains("49"), InvalidInput);

@@ -1,27 +1,71 @@
 #pragma once
 /// \file
-/// Parameters of one layer of Fourier features.
+/// Parameters of one layer: feature groups and the amplitudes of their features.
+
+#include <vector>
 
 #include "wavestack/core/types.hpp"
+#include "wavestack/features/feature_group.hpp"
 
 namespace wavestack {
 
-/// K frequencies in scaled input coordinates (K x d, row k = w_k) and their
-/// amplitudes (2K x m: row k is the cosine amplitude of frequency k for each
-/// output, row K + k the sine amplitude), in standardised output units.
-struct FourierLayer {
-    Matrix frequencies;
+/// Fills phi (N x sum of featureCount()) with the features of `groups`
+/// side by side, in group order, for scaled inputs (N x d).
+inline void layerFeatures(const std::vector<FeatureGroup>& groups, const MatrixView& inputs, Eigen::Ref<Matrix> phi)
+{
+    Index column = 0;
+    for (const auto& group : groups) {
+        group.features(inputs, phi.middleCols(column, group.featureCount()));
+        column += group.featureCount();
+    }
+}
+
+/// The layer's features are the groups' feature columns side by side, in
+/// group order; `amplitudes` has one row per feature column and one column
+/// per output, in standardised output units.
+struct Layer {
+    std::vector<FeatureGroup> groups;
     Matrix amplitudes;
 
-    Index width() const { return frequencies.rows(); }
-
-    /// |b_k|: Euclidean norm of frequency k's amplitude pair over all outputs.
-    Vector amplitudeNorms() const
+    Index featureCount() const
     {
-        const Index count = width();
-        return (amplitudes.topRows(count).rowwise().squaredNorm() +
-                amplitudes.bottomRows(count).rowwise().squaredNorm())
-            .cwiseSqrt();
+        Index count = 0;
+        for (const auto& group : groups)
+            count += group.featureCount();
+        return count;
+    }
+
+    /// Number of parameter rows over all groups.
+    Index width() const
+    {
+        Index count = 0;
+        for (const auto& group : groups)
+            count += group.width();
+        return count;
+    }
+
+    /// Fills the N x featureCount() feature matrix of the whole layer.
+    void features(const MatrixView& inputs, Eigen::Ref<Matrix> phi) const { layerFeatures(groups, inputs, phi); }
+
+    /// |b_k| for every parameter row k over all groups: the Euclidean norm of
+    /// all amplitudes of row k's features over all outputs.
+    Vector amplitudeNorms() const { return amplitudeNorms(groups, amplitudes); }
+
+    static Vector amplitudeNorms(const std::vector<FeatureGroup>& groups, const Matrix& amplitudes)
+    {
+        Index total = 0;
+        for (const auto& group : groups)
+            total += group.width();
+        Vector norms = Vector::Zero(total);
+        Index row = 0, column = 0;
+        for (const auto& group : groups) {
+            const Index k = group.width();
+            for (Index f = 0; f < featuresPerParameter(group.kind); ++f)
+                norms.segment(row, k) += amplitudes.middleRows(column + f * k, k).rowwise().squaredNorm();
+            row += k;
+            column += group.featureCount();
+        }
+        return norms.cwiseSqrt();
     }
 };
 

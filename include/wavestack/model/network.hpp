@@ -1,82 +1,70 @@
 #pragma once
 /// \file
-/// The trained surrogate: scalers plus Fourier feature layers. A network only
-/// holds parameters and evaluates them; it never trains and never prints.
-/// Evaluation is const and thread-safe, and the single-point path allocates
-/// nothing, so host codes may call it from many threads in their inner loops.
+/// The trained surrogate: scalers plus a layer of feature groups. A network
+/// only holds parameters and evaluates them; it never trains and never
+/// prints. Evaluation is const and thread-safe, and the single-point path
+/// allocates nothing, so host codes may call it from many threads in their
+/// inner loops.
 
 #include <algorithm>
 #include <string>
+#include <utility>
+#include <vector>
 
 #include "wavestack/core/error.hpp"
 #include "wavestack/core/types.hpp"
-#include "wavestack/detail/sincos.hpp"
 #include "wavestack/model/layer.hpp"
 #include "wavestack/model/scaler.hpp"
 
 namespace wavestack {
 
-/// f(x) = mean + deviation * sum_k b_k . (cos(w_k . S(x)), sin(w_k . S(x)))
-/// with S the input scaler; the shallow random-Fourier-feature network.
+/// f(x) = mean + deviation * sum_k b_k . phi_k(S(x)), S the input scaler:
+/// the shallow network (random Fourier features and/or ridge features).
 class Network {
 public:
     Network() = default;
 
-    Network(InputScaler inputScaler, OutputScaler outputScaler, FourierLayer layer)
+    Network(InputScaler inputScaler, OutputScaler outputScaler, Layer layer)
         : m_inputScaler(std::move(inputScaler)), m_outputScaler(std::move(outputScaler)), m_layer(std::move(layer))
     {
         const Index d = m_inputScaler.inputCount();
-        const Index m = m_outputScaler.outputCount();
-        const Index k = m_layer.width();
-        if (m_layer.frequencies.cols() != d || m_layer.amplitudes.rows() != 2 * k || m_layer.amplitudes.cols() != m)
-            throw InvalidInput("Network: layer shapes (frequencies " + shape(m_layer.frequencies) + ", amplitudes " +
-                               shape(m_layer.amplitudes) + ") do not fit " + std::to_string(d) + " inputs and " +
-                               std::to_string(m) + " outputs");
-        foldScalers();
+        for (const auto& group : m_layer.groups)
+            if (group.parameters.cols() != parameterSize(group.kind, d))
+                throw InvalidInput(std::string("Network: a ") + featureKindName(group.kind) + " group has " +
+                                   std::to_string(group.parameters.cols()) + " parameters per row, expected " +
+                                   std::to_string(parameterSize(group.kind, d)) + " for " + std::to_string(d) +
+                                   " inputs");
+        if (m_layer.amplitudes.rows() != m_layer.featureCount() ||
+            m_layer.amplitudes.cols() != m_outputScaler.outputCount())
+            throw InvalidInput("Network: amplitudes are " + std::to_string(m_layer.amplitudes.rows()) + " x " +
+                               std::to_string(m_layer.amplitudes.cols()) + ", expected " +
+                               std::to_string(m_layer.featureCount()) + " features x " +
+                               std::to_string(m_outputScaler.outputCount()) + " outputs");
+        Index column = 0;
+        for (const auto& group : m_layer.groups) {
+            m_kernels.push_back(foldScalers(group, column));
+            column += group.featureCount();
+        }
     }
 
     Index inputCount() const { return m_inputScaler.inputCount(); }
     Index outputCount() const { return m_outputScaler.outputCount(); }
+    /// Parameter rows (frequencies, ridge directions) over all groups.
     Index width() const { return m_layer.width(); }
 
     const InputScaler& inputScaler() const { return m_inputScaler; }
     const OutputScaler& outputScaler() const { return m_outputScaler; }
-    const FourierLayer& layer() const { return m_layer; }
+    const Layer& layer() const { return m_layer; }
 
     /// One point: reads inputCount() values at x, writes outputCount() at y.
     /// No checks and no allocation: the inner-loop entry point.
     void evaluate(const double* x, double* y) const noexcept
     {
-        const Index d = inputCount();
         const Index m = outputCount();
-        const Index width = m_layer.width();
         for (Index o = 0; o < m; ++o)
             y[o] = m_outputScaler.mean()[o];
-        // Frequencies in chunks that fit on the stack.
-        constexpr Index chunk = 128;
-        alignas(64) double angle[chunk];
-        alignas(64) double sine[chunk];
-        alignas(64) double cosine[chunk];
-        for (Index k0 = 0; k0 < width; k0 += chunk) {
-            const Index n = std::min(chunk, width - k0);
-            const double* phase = m_phase.data() + k0;
-            std::copy(phase, phase + n, angle);
-            for (Index j = 0; j < d; ++j) {
-                const double xj = x[j];
-                const double* w = &m_foldedFrequencies(k0, j);
-                for (Index k = 0; k < n; ++k)
-                    angle[k] += w[k] * xj;
-            }
-            detail::sincos(angle, sine, cosine, n);
-            for (Index o = 0; o < m; ++o) {
-                const double* bc = &m_cosineAmplitudes(k0, o);
-                const double* bs = &m_sineAmplitudes(k0, o);
-                double sum = 0.0;
-                for (Index k = 0; k < n; ++k)
-                    sum += bc[k] * cosine[k] + bs[k] * sine[k];
-                y[o] += sum;
-            }
-        }
+        for (const auto& kernel : m_kernels)
+            withFeatureMap(kernel.kind, [&](auto map) { accumulatePoint<decltype(map)>(kernel, x, y); });
     }
 
     /// One point, with a size check.
@@ -94,30 +82,100 @@ public:
     {
         requireInputs(inputs.cols(), "Network::evaluateBatch: the inputs' column count");
         const Index points = inputs.rows();
-        const Index width = m_layer.width();
         Matrix outputs(points, outputCount());
         // Row blocks bound the scratch memory whatever N is.
         const Index block = std::min<Index>(256, std::max<Index>(points, 1));
-        Matrix angles(block, width);
-        Matrix sines(block, width);
+        Index widest = 0;
+        for (const auto& kernel : m_kernels)
+            widest = std::max(widest, kernel.amplitudes.rows());
+        Matrix features(block, widest);
         for (Index r0 = 0; r0 < points; r0 += block) {
             const Index n = std::min(block, points - r0);
-            auto a = angles.topRows(n);
-            auto s = sines.topRows(n);
-            a.noalias() = inputs.middleRows(r0, n) * m_foldedFrequencies.transpose();
-            a.rowwise() += m_phase.transpose();
-            for (Index k = 0; k < width; ++k)
-                detail::sincos(&angles(0, k), &sines(0, k), &angles(0, k), n);
             auto out = outputs.middleRows(r0, n);
-            out.noalias() = a * m_cosineAmplitudes;
-            out.noalias() += s * m_sineAmplitudes;
-            out.rowwise() += m_outputScaler.mean().transpose();
+            out.rowwise() = m_outputScaler.mean().transpose();
+            for (const auto& kernel : m_kernels)
+                withFeatureMap(kernel.kind, [&](auto map) {
+                    accumulateBatch<decltype(map)>(kernel, inputs.middleRows(r0, n), features, out);
+                });
         }
         return outputs;
     }
 
 private:
-    static std::string shape(const Matrix& a) { return std::to_string(a.rows()) + " x " + std::to_string(a.cols()); }
+    /// A group laid out for evaluation on unscaled inputs: angle_k =
+    /// (w_k * scale) . x + (w_k . offset + c_k), and the output deviation
+    /// multiplied into the amplitudes, so evaluation never forms S(x) or
+    /// rescales y.
+    struct Kernel {
+        FeatureKind kind;
+        Matrix slopes;       // K x d
+        Vector phase;        // K
+        Matrix amplitudes;   // featuresPerParameter * K x m
+    };
+
+    /// `column`: the group's first feature column in the layer.
+    Kernel foldScalers(const FeatureGroup& group, Index column) const
+    {
+        const Index d = inputCount();
+        const auto slopes = group.parameters.leftCols(d);
+        Kernel kernel{group.kind, slopes * m_inputScaler.scale().asDiagonal(), slopes * m_inputScaler.offset(),
+                      m_layer.amplitudes.middleRows(column, group.featureCount()) *
+                          m_outputScaler.deviation().asDiagonal()};
+        if (group.parameters.cols() > d)
+            kernel.phase += group.parameters.col(d);
+        return kernel;
+    }
+
+    template <class Map>
+    static void accumulatePoint(const Kernel& kernel, const double* x, double* y) noexcept
+    {
+        constexpr Index chunk = 128;  // parameter rows per pass, on the stack
+        alignas(64) double first[chunk];
+        alignas(64) double second[chunk];
+        const Index d = kernel.slopes.cols();
+        const Index width = kernel.slopes.rows();
+        const Index m = kernel.amplitudes.cols();
+        for (Index k0 = 0; k0 < width; k0 += chunk) {
+            const Index n = std::min(chunk, width - k0);
+            const double* phase = kernel.phase.data() + k0;
+            std::copy(phase, phase + n, first);
+            for (Index j = 0; j < d; ++j) {
+                const double xj = x[j];
+                const double* w = &kernel.slopes(k0, j);
+                for (Index k = 0; k < n; ++k)
+                    first[k] += w[k] * xj;
+            }
+            Map::activate(first, second, n);
+            for (Index o = 0; o < m; ++o) {
+                const double* b = &kernel.amplitudes(k0, o);
+                double sum = 0.0;
+                if constexpr (Map::featuresPerParameter == 2) {
+                    const double* b2 = b + width;  // the second feature's amplitudes follow K rows later
+                    for (Index k = 0; k < n; ++k)
+                        sum += b[k] * first[k] + b2[k] * second[k];
+                } else {
+                    for (Index k = 0; k < n; ++k)
+                        sum += b[k] * first[k];
+                }
+                y[o] += sum;
+            }
+        }
+    }
+
+    template <class Map>
+    static void accumulateBatch(const Kernel& kernel, const MatrixView& inputs, Matrix& scratch,
+                                Eigen::Ref<Matrix> out)
+    {
+        const Index n = inputs.rows();
+        const Index width = kernel.slopes.rows();
+        auto features = scratch.block(0, 0, n, kernel.amplitudes.rows());
+        auto angles = features.leftCols(width);
+        angles.noalias() = inputs * kernel.slopes.transpose();
+        angles.rowwise() += kernel.phase.transpose();
+        for (Index k = 0; k < width; ++k)
+            Map::activate(&features(0, k), Map::featuresPerParameter > 1 ? &features(0, width + k) : nullptr, n);
+        out.noalias() += features * kernel.amplitudes;
+    }
 
     void requireInputs(Index count, const char* what) const
     {
@@ -126,27 +184,10 @@ private:
                                std::to_string(inputCount()) + " inputs");
     }
 
-    /// w . S(x) = (w * scale) . x + w . offset, and the output deviation
-    /// multiplies the amplitudes: evaluation never forms S(x) or rescales y.
-    void foldScalers()
-    {
-        const Index width = m_layer.width();
-        m_foldedFrequencies = m_layer.frequencies * m_inputScaler.scale().asDiagonal();
-        m_phase = m_layer.frequencies * m_inputScaler.offset();
-        const auto deviation = m_outputScaler.deviation().asDiagonal();
-        m_cosineAmplitudes = m_layer.amplitudes.topRows(width) * deviation;
-        m_sineAmplitudes = m_layer.amplitudes.bottomRows(width) * deviation;
-    }
-
     InputScaler m_inputScaler;
     OutputScaler m_outputScaler;
-    FourierLayer m_layer;
-
-    // Kernel layout, derived from the above: K x d, K, K x m, K x m.
-    Matrix m_foldedFrequencies;
-    Vector m_phase;
-    Matrix m_cosineAmplitudes;
-    Matrix m_sineAmplitudes;
+    Layer m_layer;
+    std::vector<Kernel> m_kernels;  // derived from the above, one per group
 };
 
 }  // namespace wavestack

@@ -1,37 +1,54 @@
 #pragma once
 /// \file
-/// A sampler that returns parameter rows chosen by the user.
+/// A sampler that returns parameter rows chosen by the user, for example
+/// frequencies known from the physics of the target. Contract: see
+/// sampling/gaussian_sampler.hpp.
 
 #include <string>
 #include <utility>
+#include <vector>
 
 #include "wavestack/core/error.hpp"
 #include "wavestack/core/random.hpp"
 #include "wavestack/core/types.hpp"
 #include "wavestack/core/validate.hpp"
+#include "wavestack/features/feature_group.hpp"
+#include "wavestack/train/layer_problem.hpp"
 
 namespace wavestack {
 
-/// Hands out parameter rows given by the user, for example frequencies known
-/// from the physics of the target. `draw` checks the requested shape.
 class FixedSampler {
 public:
-    explicit FixedSampler(Matrix parameters) : m_parameters(std::move(parameters))
+    /// One matrix of parameter rows per feature group, in the layer's group order.
+    explicit FixedSampler(std::vector<Matrix> parameters) : m_parameters(std::move(parameters))
     {
-        detail::requireFinite(m_parameters, "FixedSampler: parameters");
+        for (const auto& p : m_parameters)
+            detail::requireFinite(p, "FixedSampler: parameters");
     }
+    explicit FixedSampler(Matrix parameters) : FixedSampler(std::vector<Matrix>{std::move(parameters)}) {}
 
-    Matrix draw(Index count, Index parameterSize, Random& /*random*/) const
+    template <class Problem>
+    std::vector<FeatureGroup> sample(Problem& problem, const std::vector<GroupShape>& shapes, Random& /*random*/) const
     {
-        if (count != m_parameters.rows() || parameterSize != m_parameters.cols())
-            throw InvalidInput("FixedSampler: asked for " + std::to_string(count) + " x " +
-                               std::to_string(parameterSize) + " parameters but holds " +
-                               std::to_string(m_parameters.rows()) + " x " + std::to_string(m_parameters.cols()));
-        return m_parameters;
+        if (shapes.size() != m_parameters.size())
+            throw InvalidInput("FixedSampler: the layer has " + std::to_string(shapes.size()) +
+                               " feature groups but " + std::to_string(m_parameters.size()) + " were given");
+        std::vector<FeatureGroup> groups;
+        for (std::size_t g = 0; g < shapes.size(); ++g) {
+            const Index rows = shapes[g].width;
+            const Index cols = parameterSize(shapes[g].kind, problem.inputCount());
+            if (m_parameters[g].rows() != rows || m_parameters[g].cols() != cols)
+                throw InvalidInput("FixedSampler: group " + std::to_string(g) + " needs " + std::to_string(rows) +
+                                   " x " + std::to_string(cols) + " parameters but " +
+                                   std::to_string(m_parameters[g].rows()) + " x " +
+                                   std::to_string(m_parameters[g].cols()) + " were given");
+            groups.push_back(FeatureGroup{shapes[g].kind, m_parameters[g]});
+        }
+        return groups;
     }
 
 private:
-    Matrix m_parameters;
+    std::vector<Matrix> m_parameters;
 };
 
 }  // namespace wavestack

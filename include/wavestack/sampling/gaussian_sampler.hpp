@@ -1,25 +1,32 @@
 #pragma once
 /// \file
-/// Gaussian frequency sampler.
+/// Gaussian frequency sampler: random Fourier features (Rahimi & Recht,
+/// "Random features for large-scale kernel machines", NIPS 2007).
 ///
 /// Sampler contract (every sampler provides it):
-/// `Matrix draw(Index count, Index parameterSize, Random&)` returns a
-/// count x parameterSize matrix of parameter rows. Samplers know nothing of
-/// the feature map or the solver they serve.
+///   template <class Problem>
+///   std::vector<FeatureGroup> sample(Problem&, const std::vector<GroupShape>&, Random&) const;
+/// returns one feature group per shape with its parameter rows chosen. The
+/// problem (train/layer_problem.hpp) answers amplitude norms and errors for
+/// any parameter rows; a sampler never sees the data or the feature map.
+
+#include <vector>
 
 #include "wavestack/core/random.hpp"
 #include "wavestack/core/types.hpp"
 #include "wavestack/core/validate.hpp"
+#include "wavestack/features/feature_group.hpp"
+#include "wavestack/train/layer_problem.hpp"
 
 namespace wavestack {
 
-/// Independent normal entries with mean 0 and standard deviation `stddev`:
-/// random Fourier features for a Gaussian kernel of length scale 1/stddev in
-/// scaled input coordinates (Rahimi & Recht 2007).
+/// Independent normal parameters with mean 0 and standard deviation
+/// `stddev`: for Fourier features, a Gaussian kernel of length scale
+/// 1/stddev in scaled input coordinates.
 class GaussianSampler {
 public:
-    /// Default chosen by measurement on the Ishigami and plane-wall demo data,
-    /// inputs scaled to [-1, 1]; see DEVELOPERS.md.
+    /// Chosen by measurement on the Ishigami and plane-wall data with inputs
+    /// scaled to [-1, 1] (DEVELOPERS.md, "Defaults").
     static constexpr double defaultStddev = 3.0;
 
     explicit GaussianSampler(double stddev = defaultStddev) : m_stddev(stddev)
@@ -29,14 +36,25 @@ public:
 
     double stddev() const { return m_stddev; }
 
-    Matrix draw(Index count, Index parameterSize, Random& random) const
+    /// Draws without consulting the problem.
+    std::vector<FeatureGroup> draw(const std::vector<GroupShape>& shapes, Index inputCount, Random& random) const
     {
-        Matrix parameters(count, parameterSize);
-        // Row by row, so the first rows do not depend on how many are drawn.
-        for (Index k = 0; k < count; ++k)
-            for (Index j = 0; j < parameterSize; ++j)
-                parameters(k, j) = m_stddev * random.normal();
-        return parameters;
+        std::vector<FeatureGroup> groups;
+        for (const auto& shape : shapes) {
+            FeatureGroup group{shape.kind, Matrix(shape.width, parameterSize(shape.kind, inputCount))};
+            // Row by row, so the first rows do not depend on how many are drawn.
+            for (Index k = 0; k < group.parameters.rows(); ++k)
+                for (Index j = 0; j < group.parameters.cols(); ++j)
+                    group.parameters(k, j) = m_stddev * random.normal();
+            groups.push_back(std::move(group));
+        }
+        return groups;
+    }
+
+    template <class Problem>
+    std::vector<FeatureGroup> sample(Problem& problem, const std::vector<GroupShape>& shapes, Random& random) const
+    {
+        return draw(shapes, problem.inputCount(), random);
     }
 
 private:

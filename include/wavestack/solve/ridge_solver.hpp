@@ -8,37 +8,49 @@
 
 #include <cmath>
 #include <string>
+#include <utility>
+#include <vector>
 
 #include "wavestack/core/error.hpp"
 #include "wavestack/core/types.hpp"
 #include "wavestack/core/validate.hpp"
+#include "wavestack/parallel/reduction.hpp"
 
 namespace wavestack {
+
+/// Which factorisation a ridge solve used.
+enum class SolvePath { cholesky, qr };
+
+/// Tuning of RidgeSolver's choice between its two paths.
+struct RidgeSettings {
+    /// QR is used when P > qrWidthFraction * N ("P not small against N").
+    double qrWidthFraction = 0.25;
+    /// QR is used when Cholesky's reciprocal condition estimate of the
+    /// regularised Gram matrix falls below this. Cholesky's relative
+    /// error in the amplitudes is about eps / rcond, so 1e-8 keeps it
+    /// near 1e-8 or better.
+    double minReciprocalCondition = 1e-8;
+};
 
 /// Gram matrix + Cholesky when P is small against N and the regularised Gram
 /// matrix is well conditioned; column-pivoted Householder QR of the stacked
 /// system [Phi / sqrt(N); sqrt(lambda) I] otherwise. QR works on Phi itself,
 /// so its error grows with cond(Phi) instead of cond(Phi)^2.
 ///
-/// The object keeps its Gram and factor buffers between calls, so a sampler
-/// that re-solves thousands of times with the same shape allocates once.
+/// The Gram matrix and right-hand side are sums over a fixed cut of the rows
+/// (RowBlocks), each block's part formed by one task of the reduction policy
+/// as a symmetric rank-k update (one triangle) and the parts added in block
+/// order: the same bits for every worker count.
+///
+/// The object keeps its Gram, partial and factor buffers between calls, so a
+/// sampler that re-solves thousands of times with the same shape allocates once.
+template <class Reduction = SerialReduction>
 class RidgeSolver {
 public:
-    /// Which factorisation the last solve used.
-    enum class Path { cholesky, qr };
-
-    struct Settings {
-        /// QR is used when P > qrWidthFraction * N ("P not small against N").
-        double qrWidthFraction = 0.25;
-        /// QR is used when Cholesky's reciprocal condition estimate of the
-        /// regularised Gram matrix falls below this. Cholesky's relative
-        /// error in the amplitudes is about eps / rcond, so 1e-8 keeps it
-        /// near 1e-8 or better.
-        double minReciprocalCondition = 1e-8;
-    };
-
-    RidgeSolver() = default;
-    explicit RidgeSolver(const Settings& settings) : m_settings(settings) {}
+    explicit RidgeSolver(const RidgeSettings& settings = RidgeSettings(), Reduction reduction = Reduction())
+        : m_settings(settings), m_reduction(std::move(reduction))
+    {
+    }
 
     void solve(const MatrixView& features, const MatrixView& targets, double lambda, Matrix& amplitudes)
     {
@@ -54,17 +66,12 @@ public:
 
         const double scale = 1.0 / static_cast<double>(points);
         if (static_cast<double>(width) <= m_settings.qrWidthFraction * static_cast<double>(points)) {
-            // One triangle of Phi^T Phi by a symmetric rank-N update.
-            m_gram.resize(width, width);
-            m_gram.triangularView<Eigen::Lower>().setZero();
-            m_gram.selfadjointView<Eigen::Lower>().rankUpdate(features.transpose(), scale);
+            assembleNormalEquations(features, targets, scale, amplitudes);
             m_gram.diagonal().array() += lambda;
             m_cholesky.compute(m_gram);
             if (m_cholesky.info() == Eigen::Success && m_cholesky.rcond() >= m_settings.minReciprocalCondition) {
-                amplitudes.noalias() = features.transpose() * targets;
-                amplitudes *= scale;
                 m_cholesky.solveInPlace(amplitudes);
-                m_lastPath = Path::cholesky;
+                m_lastPath = SolvePath::cholesky;
                 requireFiniteResult(amplitudes);
                 return;
             }
@@ -72,10 +79,48 @@ public:
         solveByQr(features, targets, lambda, amplitudes);
     }
 
-    Path lastPath() const { return m_lastPath; }
-    const Settings& settings() const { return m_settings; }
+    SolvePath lastPath() const { return m_lastPath; }
+    const RidgeSettings& settings() const { return m_settings; }
+    const Reduction& reduction() const { return m_reduction; }
 
 private:
+    /// Lower triangle of scale * Phi^T Phi into m_gram, scale * Phi^T R into rhs.
+    void assembleNormalEquations(const MatrixView& features, const MatrixView& targets, double scale, Matrix& rhs)
+    {
+        const Index width = features.cols();
+        const RowBlocks blocks(features.rows());
+        m_gram.resize(width, width);
+        rhs.resize(width, targets.cols());
+        if (blocks.count == 1) {
+            formBlock(features, targets, scale, m_gram, rhs);
+            return;
+        }
+        m_partialGrams.resize(static_cast<std::size_t>(blocks.count));
+        m_partialRhs.resize(static_cast<std::size_t>(blocks.count));
+        m_reduction.run(blocks.count, [&](Index b) {
+            const auto i = static_cast<std::size_t>(b);
+            m_partialGrams[i].resize(width, width);
+            m_partialRhs[i].resize(width, targets.cols());
+            formBlock(features.middleRows(blocks.begin(b), blocks.size(b)),
+                      targets.middleRows(blocks.begin(b), blocks.size(b)), scale, m_partialGrams[i], m_partialRhs[i]);
+        });
+        m_gram.triangularView<Eigen::Lower>() = m_partialGrams[0];
+        rhs = m_partialRhs[0];
+        for (std::size_t i = 1; i < m_partialGrams.size(); ++i) {
+            m_gram.triangularView<Eigen::Lower>() += m_partialGrams[i];
+            rhs += m_partialRhs[i];
+        }
+    }
+
+    static void formBlock(const MatrixView& features, const MatrixView& targets, double scale, Matrix& gram,
+                          Matrix& rhs)
+    {
+        gram.triangularView<Eigen::Lower>().setZero();
+        gram.selfadjointView<Eigen::Lower>().rankUpdate(features.transpose(), scale);
+        rhs.noalias() = features.transpose() * targets;
+        rhs *= scale;
+    }
+
     void solveByQr(const MatrixView& features, const MatrixView& targets, double lambda, Matrix& amplitudes)
     {
         const Index points = features.rows();
@@ -90,7 +135,7 @@ private:
             stacked.bottomRows(extra) = std::sqrt(lambda) * Matrix::Identity(width, width);
         Eigen::ColPivHouseholderQR<Matrix> qr(stacked);
         amplitudes = qr.solve(rhs);
-        m_lastPath = Path::qr;
+        m_lastPath = SolvePath::qr;
         requireFiniteResult(amplitudes);
     }
 
@@ -100,10 +145,13 @@ private:
             throw NumericalError("RidgeSolver: the amplitudes are not finite; the features or targets overflow");
     }
 
-    Settings m_settings;
+    RidgeSettings m_settings;
+    Reduction m_reduction;
     Matrix m_gram;
+    std::vector<Matrix> m_partialGrams;
+    std::vector<Matrix> m_partialRhs;
     Eigen::LLT<Matrix, Eigen::Lower> m_cholesky;
-    Path m_lastPath = Path::cholesky;
+    SolvePath m_lastPath = SolvePath::cholesky;
 };
 
 }  // namespace wavestack
