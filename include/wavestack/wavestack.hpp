@@ -20,6 +20,7 @@
 #include "wavestack/sampling/fixed_sampler.hpp"
 #include "wavestack/sampling/gaussian_sampler.hpp"
 #include "wavestack/sampling/metropolis_sampler.hpp"
+#include "wavestack/solve/gram.hpp"
 #include "wavestack/solve/ridge_solver.hpp"
 #include "wavestack/train/fit.hpp"
 #include "wavestack/train/layer_problem.hpp"

@@ -15,6 +15,7 @@
 #include "wavestack/core/types.hpp"
 #include "wavestack/core/validate.hpp"
 #include "wavestack/parallel/reduction.hpp"
+#include "wavestack/solve/gram.hpp"
 
 namespace wavestack {
 
@@ -37,10 +38,9 @@ struct RidgeSettings {
 /// system [Phi / sqrt(N); sqrt(lambda) I] otherwise. QR works on Phi itself,
 /// so its error grows with cond(Phi) instead of cond(Phi)^2.
 ///
-/// The Gram matrix and right-hand side are sums over a fixed cut of the rows
-/// (RowBlocks), each block's part formed by one task of the reduction policy
-/// as a symmetric rank-k update (one triangle) and the parts added in block
-/// order: the same bits for every worker count.
+/// The normal equations are assembled by GramAssembler (solve/gram.hpp):
+/// one triangle, rows cut into fixed blocks, the same bits for every worker
+/// count.
 ///
 /// The object keeps its Gram, partial and factor buffers between calls, so a
 /// sampler that re-solves thousands of times with the same shape allocates once.
@@ -48,7 +48,7 @@ template <class Reduction = SerialReduction>
 class RidgeSolver {
 public:
     explicit RidgeSolver(const RidgeSettings& settings = RidgeSettings(), Reduction reduction = Reduction())
-        : m_settings(settings), m_reduction(std::move(reduction))
+        : m_settings(settings), m_assembler(std::move(reduction))
     {
     }
 
@@ -66,7 +66,7 @@ public:
 
         const double scale = 1.0 / static_cast<double>(points);
         if (static_cast<double>(width) <= m_settings.qrWidthFraction * static_cast<double>(points)) {
-            assembleNormalEquations(features, targets, scale, amplitudes);
+            m_assembler.assemble(features, targets, scale, m_gram, amplitudes);
             m_gram.diagonal().array() += lambda;
             m_cholesky.compute(m_gram);
             if (m_cholesky.info() == Eigen::Success && m_cholesky.rcond() >= m_settings.minReciprocalCondition) {
@@ -81,46 +81,9 @@ public:
 
     SolvePath lastPath() const { return m_lastPath; }
     const RidgeSettings& settings() const { return m_settings; }
-    const Reduction& reduction() const { return m_reduction; }
+    const Reduction& reduction() const { return m_assembler.reduction(); }
 
 private:
-    /// Lower triangle of scale * Phi^T Phi into m_gram, scale * Phi^T R into rhs.
-    void assembleNormalEquations(const MatrixView& features, const MatrixView& targets, double scale, Matrix& rhs)
-    {
-        const Index width = features.cols();
-        const RowBlocks blocks(features.rows());
-        m_gram.resize(width, width);
-        rhs.resize(width, targets.cols());
-        if (blocks.count == 1) {
-            formBlock(features, targets, scale, m_gram, rhs);
-            return;
-        }
-        m_partialGrams.resize(static_cast<std::size_t>(blocks.count));
-        m_partialRhs.resize(static_cast<std::size_t>(blocks.count));
-        m_reduction.run(blocks.count, [&](Index b) {
-            const auto i = static_cast<std::size_t>(b);
-            m_partialGrams[i].resize(width, width);
-            m_partialRhs[i].resize(width, targets.cols());
-            formBlock(features.middleRows(blocks.begin(b), blocks.size(b)),
-                      targets.middleRows(blocks.begin(b), blocks.size(b)), scale, m_partialGrams[i], m_partialRhs[i]);
-        });
-        m_gram.triangularView<Eigen::Lower>() = m_partialGrams[0];
-        rhs = m_partialRhs[0];
-        for (std::size_t i = 1; i < m_partialGrams.size(); ++i) {
-            m_gram.triangularView<Eigen::Lower>() += m_partialGrams[i];
-            rhs += m_partialRhs[i];
-        }
-    }
-
-    static void formBlock(const MatrixView& features, const MatrixView& targets, double scale, Matrix& gram,
-                          Matrix& rhs)
-    {
-        gram.triangularView<Eigen::Lower>().setZero();
-        gram.selfadjointView<Eigen::Lower>().rankUpdate(features.transpose(), scale);
-        rhs.noalias() = features.transpose() * targets;
-        rhs *= scale;
-    }
-
     void solveByQr(const MatrixView& features, const MatrixView& targets, double lambda, Matrix& amplitudes)
     {
         const Index points = features.rows();
@@ -146,10 +109,8 @@ private:
     }
 
     RidgeSettings m_settings;
-    Reduction m_reduction;
+    GramAssembler<Reduction> m_assembler;
     Matrix m_gram;
-    std::vector<Matrix> m_partialGrams;
-    std::vector<Matrix> m_partialRhs;
     Eigen::LLT<Matrix, Eigen::Lower> m_cholesky;
     SolvePath m_lastPath = SolvePath::cholesky;
 };
