@@ -4,7 +4,7 @@
 #include <cmath>
 
 #include <wavestack/core/random.hpp>
-#include <wavestack/detail/sincos.hpp>
+#include <wavestack/detail/simd.hpp>
 #include <wavestack/features/feature_group.hpp>
 
 using namespace wavestack;

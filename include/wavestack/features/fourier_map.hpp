@@ -16,7 +16,7 @@
 /// network's kernels from these members alone.
 
 #include "wavestack/core/types.hpp"
-#include "wavestack/detail/sincos.hpp"
+#include "wavestack/detail/simd.hpp"
 
 namespace wavestack {
 

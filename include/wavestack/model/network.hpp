@@ -13,6 +13,7 @@
 
 #include "wavestack/core/error.hpp"
 #include "wavestack/core/types.hpp"
+#include "wavestack/detail/simd.hpp"
 #include "wavestack/model/layer.hpp"
 #include "wavestack/model/scaler.hpp"
 
@@ -148,16 +149,9 @@ private:
             Map::activate(first, second, n);
             for (Index o = 0; o < m; ++o) {
                 const double* b = &kernel.amplitudes(k0, o);
-                double sum = 0.0;
-                if constexpr (Map::featuresPerParameter == 2) {
-                    const double* b2 = b + width;  // the second feature's amplitudes follow K rows later
-                    for (Index k = 0; k < n; ++k)
-                        sum += b[k] * first[k] + b2[k] * second[k];
-                } else {
-                    for (Index k = 0; k < n; ++k)
-                        sum += b[k] * first[k];
-                }
-                y[o] += sum;
+                y[o] += detail::dot(b, first, n);
+                if constexpr (Map::featuresPerParameter == 2)
+                    y[o] += detail::dot(b + width, second, n);  // the second feature's amplitudes follow K rows later
             }
         }
     }
