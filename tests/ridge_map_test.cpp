@@ -51,7 +51,7 @@ TEST_CASE("a layer of both maps lays their features side by side and measures ea
     CHECK(layer.width() == 5);
     const Matrix u = randomMatrix(n, d, 1.0, random);
     Matrix phi(n, layer.featureCount());
-    layer.features(u, phi);
+    layer.features(u, Matrix(n, 0), phi);
     Matrix fourier(n, 6), ridge(n, 2);
     layer.groups[0].features(u, fourier);
     layer.groups[1].features(u, ridge);

@@ -16,6 +16,10 @@ enum class FeatureKind {
     ridge,    ///< tanh(w . u + c), see RidgeMap
 };
 
+/// What a group's features read: the scaled input u, or the state s of a
+/// residual network (see model/network.hpp).
+enum class FeatureSource { input, state };
+
 inline const char* featureKindName(FeatureKind kind) { return kind == FeatureKind::fourier ? "fourier" : "ridge"; }
 
 /// Calls `action` with the policy class of `kind` (as a value of that type).
@@ -32,21 +36,30 @@ inline Index featuresPerParameter(FeatureKind kind)
     return withFeatureMap(kind, [](auto map) { return decltype(map)::featuresPerParameter; });
 }
 
-inline Index parameterSize(FeatureKind kind, Index inputCount)
+/// Length of a parameter row for a group of `kind` reading `sourceCount` values.
+inline Index parameterSize(FeatureKind kind, Index sourceCount)
 {
-    return withFeatureMap(kind, [&](auto map) { return inputCount + (decltype(map)::hasOffset ? 1 : 0); });
+    return withFeatureMap(kind, [&](auto map) { return sourceCount + (decltype(map)::hasOffset ? 1 : 0); });
 }
 
 struct FeatureGroup {
     FeatureKind kind = FeatureKind::fourier;
-    /// K x parameterSize(kind, d); row k parameterises feature k.
+    /// K x parameterSize(kind, source dimension); row k parameterises feature k.
     Matrix parameters;
+    FeatureSource source = FeatureSource::input;
 
     Index width() const { return parameters.rows(); }
     Index featureCount() const { return featuresPerParameter(kind) * width(); }
 
-    /// Fills phi (N x featureCount()) for scaled inputs (N x d). Feature
-    /// column f * K + k belongs to parameter row k (f < featuresPerParameter).
+    /// Fills phi (N x featureCount()) from the group's source: `inputs`
+    /// (N x d, scaled) or `state` (N x m). Feature column f * K + k belongs
+    /// to parameter row k (f < featuresPerParameter).
+    void features(const MatrixView& inputs, const MatrixView& state, Eigen::Ref<Matrix> phi) const
+    {
+        features(source == FeatureSource::input ? inputs : state, phi);
+    }
+
+    /// Fills phi (N x featureCount()) from the values the group reads (N x source dimension).
     void features(const MatrixView& inputs, Eigen::Ref<Matrix> phi) const
     {
         const Index d = inputs.cols();

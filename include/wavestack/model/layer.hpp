@@ -10,12 +10,14 @@
 namespace wavestack {
 
 /// Fills phi (N x sum of featureCount()) with the features of `groups`
-/// side by side, in group order, for scaled inputs (N x d).
-inline void layerFeatures(const std::vector<FeatureGroup>& groups, const MatrixView& inputs, Eigen::Ref<Matrix> phi)
+/// side by side, in group order, from scaled inputs (N x d) and, for groups
+/// that read it, the residual network's state (N x m; may be N x 0).
+inline void layerFeatures(const std::vector<FeatureGroup>& groups, const MatrixView& inputs, const MatrixView& state,
+                          Eigen::Ref<Matrix> phi)
 {
     Index column = 0;
     for (const auto& group : groups) {
-        group.features(inputs, phi.middleCols(column, group.featureCount()));
+        group.features(inputs, state, phi.middleCols(column, group.featureCount()));
         column += group.featureCount();
     }
 }
@@ -45,7 +47,10 @@ struct Layer {
     }
 
     /// Fills the N x featureCount() feature matrix of the whole layer.
-    void features(const MatrixView& inputs, Eigen::Ref<Matrix> phi) const { layerFeatures(groups, inputs, phi); }
+    void features(const MatrixView& inputs, const MatrixView& state, Eigen::Ref<Matrix> phi) const
+    {
+        layerFeatures(groups, inputs, state, phi);
+    }
 
     /// |b_k| for every parameter row k over all groups: the Euclidean norm of
     /// all amplitudes of row k's features over all outputs.

@@ -36,13 +36,13 @@ public:
         std::vector<FeatureGroup> groups;
         for (std::size_t g = 0; g < shapes.size(); ++g) {
             const Index rows = shapes[g].width;
-            const Index cols = parameterSize(shapes[g].kind, problem.inputCount());
+            const Index cols = problem.parameterSize(shapes[g]);
             if (m_parameters[g].rows() != rows || m_parameters[g].cols() != cols)
                 throw InvalidInput("FixedSampler: group " + std::to_string(g) + " needs " + std::to_string(rows) +
                                    " x " + std::to_string(cols) + " parameters but " +
                                    std::to_string(m_parameters[g].rows()) + " x " +
                                    std::to_string(m_parameters[g].cols()) + " were given");
-            groups.push_back(FeatureGroup{shapes[g].kind, m_parameters[g]});
+            groups.push_back(FeatureGroup{shapes[g].kind, m_parameters[g], shapes[g].source});
         }
         return groups;
     }

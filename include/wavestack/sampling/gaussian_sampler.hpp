@@ -36,12 +36,14 @@ public:
 
     double stddev() const { return m_stddev; }
 
-    /// Draws without consulting the problem.
-    std::vector<FeatureGroup> draw(const std::vector<GroupShape>& shapes, Index inputCount, Random& random) const
+    /// Draws every parameter independently; the problem only supplies row lengths.
+    template <class Problem>
+    std::vector<FeatureGroup> sample(const Problem& problem, const std::vector<GroupShape>& shapes,
+                                     Random& random) const
     {
         std::vector<FeatureGroup> groups;
         for (const auto& shape : shapes) {
-            FeatureGroup group{shape.kind, Matrix(shape.width, parameterSize(shape.kind, inputCount))};
+            FeatureGroup group{shape.kind, Matrix(shape.width, problem.parameterSize(shape)), shape.source};
             // Row by row, so the first rows do not depend on how many are drawn.
             for (Index k = 0; k < group.parameters.rows(); ++k)
                 for (Index j = 0; j < group.parameters.cols(); ++j)
@@ -49,12 +51,6 @@ public:
             groups.push_back(std::move(group));
         }
         return groups;
-    }
-
-    template <class Problem>
-    std::vector<FeatureGroup> sample(Problem& problem, const std::vector<GroupShape>& shapes, Random& random) const
-    {
-        return draw(shapes, problem.inputCount(), random);
     }
 
 private:

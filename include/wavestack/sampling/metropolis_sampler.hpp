@@ -94,8 +94,7 @@ public:
         const Index iterations = m_settings.iterations;
         const Index burnIn = static_cast<Index>(std::ceil(m_settings.burnInFraction * double(iterations)));
 
-        std::vector<FeatureGroup> current =
-            GaussianSampler(m_settings.initialStddev).draw(shapes, problem.inputCount(), random);
+        std::vector<FeatureGroup> current = GaussianSampler(m_settings.initialStddev).sample(problem, shapes, random);
         Vector norms = problem.solve(current, m_settings.lambda);
         std::vector<FeatureGroup> proposal = current;
         std::vector<FeatureGroup> best = current;

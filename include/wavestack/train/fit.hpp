@@ -39,28 +39,48 @@ enum class SamplerKind { gaussian, metropolis };
 
 /// What a progress callback is told during training.
 struct FitProgress {
-    std::string stage;             ///< "sampling" (once per sampler iteration), then "amplitudes"
+    /// "sampling": once per sampler iteration of a layer; "layer": a layer
+    /// was added; "dropped": a layer would have raised the training error
+    /// (numerical trouble) and was left out; "stopped": the held-out error
+    /// stopped improving and later layers were not trained.
+    std::string stage;
+    Index layer = 0;               ///< 0 is the initial layer
     double seconds = 0.0;          ///< wall time since fit started
     SamplerProgress sampler;       ///< the sampler's last report (stage "sampling")
-    double trainingRmse = -1.0;    ///< standardised output units; -1 until known
+    double trainingRmse = -1.0;    ///< network so far, training rows, standardised units
+    double validationRmse = -1.0;  ///< the same on the held-out rows; -1 without a split
 };
 
 struct FitOptions {
-    /// Parameter rows (frequencies, ridge directions) of the layer, over all groups.
+    /// Parameter rows (frequencies, ridge directions) reading the inputs, per
+    /// layer, over its input groups.
     Index width = 256;
     FeatureMix features = FeatureMix::fourier;
     /// Tikhonov weight in (1/N)|Phi b - y|^2 + lambda |b|^2, outputs standardised.
     /// Fourier features have mean squared value 1/2, so lambda is relative to
     /// the Gram matrix's diagonal within a factor of two.
     double lambda = 1e-8;
+    /// Per-layer lambda (index 0 is the initial layer); layers past its end use `lambda`.
+    std::vector<double> layerLambda;
+    /// Residual layers after the initial one; 0 gives a shallow network.
+    Index layers = 0;
+    /// Parameter rows of each residual layer's state group (Fourier features
+    /// of the state); 0 selects max(1, width / 4).
+    Index stateWidth = 0;
+    /// What the state groups read; see StateInput and DEVELOPERS.md for the evidence.
+    StateInput stateInput = StateInput::runningPrediction;
+    /// With a validation split: stop after this many residual layers without
+    /// a lower held-out error, and keep the best prefix of layers.
+    Index patience = 2;
     SamplerKind sampler = SamplerKind::gaussian;
     /// Standard deviation of Gaussian frequencies (and of the Metropolis
     /// chain's initial draw), inputs scaled to [-1, 1].
     double frequencyStddev = GaussianSampler::defaultStddev;
     /// Chain settings when sampler == metropolis (initialStddev is taken from frequencyStddev).
     MetropolisSettings metropolis;
-    /// Fraction of rows held out to choose between sampler snapshots; the
-    /// final amplitudes are solved on all rows. 0 disables the split.
+    /// Fraction of rows held out to choose between sampler snapshots and to
+    /// stop adding layers; held-out rows are never used to solve amplitudes.
+    /// 0 disables the split.
     double validationFraction = 0.0;
     /// Seed of every random choice; same seed and data give the same model,
     /// bit for bit, for every thread count.
@@ -99,6 +119,12 @@ inline void checkTrainingData(const MatrixView& inputs, const MatrixView& output
     if (options.features == FeatureMix::both && options.width < 2)
         throw InvalidInput("fit: width must be at least 2 when both feature maps are used");
     requireNonNegative(options.lambda, "fit: lambda");
+    for (double lambda : options.layerLambda)
+        requireNonNegative(lambda, "fit: layerLambda");
+    if (options.layers < 0 || options.stateWidth < 0 || options.patience < 1)
+        throw InvalidInput("fit: layers and stateWidth must be >= 0 and patience >= 1, got " +
+                           std::to_string(options.layers) + ", " + std::to_string(options.stateWidth) + ", " +
+                           std::to_string(options.patience));
     requireFinite(inputs, "fit: inputs");
     requireFinite(outputs, "fit: outputs");
     if (options.inputBox && options.inputBox->lower.size() != inputs.cols())
@@ -140,61 +166,109 @@ inline Matrix selectRows(const Matrix& data, const std::vector<Index>& rows, Ind
 
 }  // namespace detail
 
-/// Fits a shallow network to N samples: inputs N x d, outputs N x m (rows =
-/// points). Parameter rows come from `sampler` (the sampler contract is in
-/// sampling/gaussian_sampler.hpp); amplitudes are the ridge solution for all
-/// outputs at once.
+/// Fits a network to N samples: inputs N x d, outputs N x m (rows = points).
+///
+/// The initial layer is fitted to the outputs; each residual layer is then
+/// fitted to what the layers before it left unexplained (boosting), reading
+/// the inputs and the network's state. Each layer's parameter rows come from
+/// its own run of `sampler` (contract in sampling/gaussian_sampler.hpp); its
+/// amplitudes are the ridge solution for all outputs at once. A layer's
+/// problem is convex in its amplitudes, so the training error cannot rise
+/// with depth; a layer that would raise it (numerical trouble) is dropped.
 template <class Sampler>
 Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOptions& options, const Sampler& sampler)
 {
     detail::checkTrainingData(inputs, outputs, options);
     const auto start = std::chrono::steady_clock::now();
     auto report = [&](FitProgress progress) {
-        if (!options.progress)
-            return true;
         progress.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
-        return options.progress(progress);
+        if (options.progress && !options.progress(progress))
+            throw Cancelled("fit: cancelled by the progress callback (stage '" + progress.stage + "', layer " +
+                            std::to_string(progress.layer) + ")");
     };
 
     InputScaler inputScaler = options.inputBox ? InputScaler(*options.inputBox) : InputScaler::fromData(inputs);
     OutputScaler outputScaler = OutputScaler::fromData(outputs);
     const Matrix scaledInputs = inputScaler.apply(inputs);
-    const Matrix targets = outputScaler.apply(outputs);
+    const Matrix scaledOutputs = outputScaler.apply(outputs);
     Random random(options.seed);
+
+    // Training and held-out rows.
+    const Index points = inputs.rows();
+    const auto held = static_cast<Index>(std::ceil(options.validationFraction * double(points)));
+    Matrix u = scaledInputs, y = scaledOutputs, heldU(0, inputs.cols()), heldY(0, outputs.cols());
+    if (held > 0) {
+        const std::vector<Index> order = detail::shuffledRows(points, random);
+        u = detail::selectRows(scaledInputs, order, held, points);
+        y = detail::selectRows(scaledOutputs, order, held, points);
+        heldU = detail::selectRows(scaledInputs, order, 0, held);
+        heldY = detail::selectRows(scaledOutputs, order, 0, held);
+    }
+    auto rmse = [](const Matrix& residual) {
+        return residual.size() > 0 ? std::sqrt(residual.squaredNorm() / double(residual.size())) : -1.0;
+    };
 
     using Solver = RidgeSolver<ThreadReduction>;
     const Solver solver(RidgeSettings(), ThreadReduction(options.threads));
-    const Index points = inputs.rows();
-    const auto held = static_cast<Index>(std::ceil(options.validationFraction * double(points)));
-    std::optional<LayerProblem<Solver>> problem;
-    if (held > 0) {
-        const std::vector<Index> order = detail::shuffledRows(points, random);
-        problem.emplace(detail::selectRows(scaledInputs, order, held, points),
-                        detail::selectRows(targets, order, held, points), options.lambda, solver);
-        problem->setValidation(detail::selectRows(scaledInputs, order, 0, held),
-                               detail::selectRows(targets, order, 0, held));
-    } else {
-        problem.emplace(scaledInputs, targets, options.lambda, solver);
-    }
-    problem->setProgress([&](const SamplerProgress& s) { return report(FitProgress{"sampling", 0.0, s, s.trainingRmse}); });
+    const Index m = outputs.cols();
+    Matrix initial = Matrix::Zero(u.rows(), m), heldInitial = Matrix::Zero(held, m);   // f0
+    Matrix residual = Matrix::Zero(u.rows(), m), heldResidual = Matrix::Zero(held, m); // z
+    std::vector<Layer> layers;
+    double trainingError = rmse(y), bestHeldError = rmse(heldY);
+    std::size_t bestCount = 1;
+    const Index stateWidth = options.stateWidth > 0 ? options.stateWidth : std::max<Index>(1, options.width / 4);
 
-    Layer layer;
-    layer.groups = sampler.sample(*problem, detail::groupShapes(options.features, options.width), random);
-    double trainingRmse = -1.0;
-    if (held > 0) {
-        // The held-out rows chose the parameters; the amplitudes use every row.
-        LayerProblem<Solver> all(scaledInputs, targets, options.lambda, solver);
-        all.solve(layer.groups);
-        layer.amplitudes = all.amplitudes();
-        trainingRmse = all.trainingRmse();
-    } else {
-        problem->solve(layer.groups);  // samplers need not leave their last solve on these rows
-        layer.amplitudes = problem->amplitudes();
-        trainingRmse = problem->trainingRmse();
+    for (Index l = 0; l <= options.layers; ++l) {
+        const double lambda = l < Index(options.layerLambda.size()) ? options.layerLambda[std::size_t(l)]
+                                                                     : options.lambda;
+        // What the earlier layers left unexplained, and the state the layer reads.
+        LayerProblem<Solver> problem(u, y - initial - residual, lambda, solver);
+        std::vector<GroupShape> shapes = detail::groupShapes(options.features, options.width);
+        if (held > 0)
+            problem.setValidation(heldU, heldY - heldInitial - heldResidual);
+        if (l > 0) {
+            const bool prediction = options.stateInput == StateInput::runningPrediction;
+            problem.setState(prediction ? Matrix(initial + residual) : residual,
+                             prediction ? Matrix(heldInitial + heldResidual) : heldResidual);
+            shapes.push_back(GroupShape{FeatureKind::fourier, stateWidth, FeatureSource::state});
+        }
+        problem.setProgress([&](const SamplerProgress& s) {
+            report(FitProgress{"sampling", l, 0.0, s, s.trainingRmse, s.validationRmse});
+            return true;
+        });
+
+        Layer layer;
+        layer.groups = sampler.sample(problem, shapes, random);
+        problem.solve(layer.groups);  // the layer's own lambda; samplers may have solved with another
+        layer.amplitudes = problem.amplitudes();
+        const Matrix& fitted = problem.fitted();
+        Matrix& target = l == 0 ? initial : residual;
+        const double error = rmse(y - initial - residual - fitted);
+        if (l > 0 && !(error <= trainingError)) {
+            report(FitProgress{"dropped", l, 0.0, SamplerProgress(), error, -1.0});
+            continue;
+        }
+        target += fitted;
+        if (held > 0)
+            (l == 0 ? heldInitial : heldResidual) += problem.validationFitted(layer.groups);
+        trainingError = error;
+        layers.push_back(std::move(layer));
+        const double heldError = rmse(heldY - heldInitial - heldResidual);
+        report(FitProgress{"layer", l, 0.0, SamplerProgress(), trainingError, heldError});
+
+        if (held > 0) {
+            if (l == 0 || heldError < bestHeldError) {
+                bestHeldError = heldError;
+                bestCount = layers.size();
+            } else if (layers.size() - bestCount >= std::size_t(options.patience)) {
+                report(FitProgress{"stopped", l, 0.0, SamplerProgress(), trainingError, heldError});
+                break;
+            }
+        }
     }
-    if (!report(FitProgress{"amplitudes", 0.0, SamplerProgress(), trainingRmse}))
-        throw Cancelled("fit: cancelled by the progress callback after the final solve");
-    return Network(std::move(inputScaler), std::move(outputScaler), std::move(layer));
+    if (held > 0)
+        layers.resize(bestCount);  // the best prefix on held-out rows
+    return Network(std::move(inputScaler), std::move(outputScaler), std::move(layers), options.stateInput);
 }
 
 /// Fits with the built-in sampler that options.sampler names.

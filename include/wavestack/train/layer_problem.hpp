@@ -26,6 +26,7 @@ namespace wavestack {
 struct GroupShape {
     FeatureKind kind = FeatureKind::fourier;
     Index width = 0;
+    FeatureSource source = FeatureSource::input;
 };
 
 /// What a sampler reports after each of its iterations.
@@ -47,7 +48,8 @@ public:
 
     /// inputs: N x d scaled; targets: N x m (standardised residuals).
     LayerProblem(Matrix inputs, Matrix targets, double lambda, Solver solver = Solver())
-        : m_inputs(std::move(inputs)), m_targets(std::move(targets)), m_lambda(lambda), m_solver(std::move(solver))
+        : m_inputs(std::move(inputs)), m_targets(std::move(targets)), m_lambda(lambda), m_solver(std::move(solver)),
+          m_state(m_inputs.rows(), 0)  // no state until setState: the initial layer reads inputs only
     {
     }
 
@@ -56,12 +58,29 @@ public:
     {
         m_validationInputs = std::move(inputs);
         m_validationTargets = std::move(targets);
+        m_validationState.resize(m_validationInputs.rows(), m_state.cols());
+    }
+
+    /// The residual network's state on the training and validation rows
+    /// (N x m each), read by groups whose source is FeatureSource::state.
+    void setState(Matrix state, Matrix validationState)
+    {
+        m_state = std::move(state);
+        m_validationState = std::move(validationState);
     }
 
     /// Called by samplers after every iteration; returning false cancels.
     void setProgress(Progress progress) { m_progress = std::move(progress); }
 
     Index inputCount() const { return m_inputs.cols(); }
+    Index stateCount() const { return m_state.cols(); }
+
+    /// Length of a parameter row of a group of this shape.
+    Index parameterSize(const GroupShape& shape) const
+    {
+        return wavestack::parameterSize(shape.kind,
+                                        shape.source == FeatureSource::input ? inputCount() : stateCount());
+    }
     bool hasValidation() const { return m_validationInputs.rows() > 0; }
     double lambda() const { return m_lambda; }
     Solver& solver() { return m_solver; }
@@ -74,7 +93,7 @@ public:
     /// The same with another lambda (samplers may regularise their chain more).
     const Vector& solve(const std::vector<FeatureGroup>& groups, double lambda)
     {
-        fillFeatures(groups, m_inputs, m_features);
+        fillFeatures(groups, m_inputs, m_state, m_features);
         m_solver.solve(m_features, m_targets, lambda, m_amplitudes);
         m_norms = Layer::amplitudeNorms(groups, m_amplitudes);
         return m_norms;
@@ -83,21 +102,32 @@ public:
     /// Amplitudes of the last solve (featureCount x m).
     const Matrix& amplitudes() const { return m_amplitudes; }
 
+    /// Phi B of the last solve on the training rows (N x m).
+    const Matrix& fitted()
+    {
+        m_fitted.noalias() = m_features * m_amplitudes;
+        return m_fitted;
+    }
+
+    /// `groups` with the last solve's amplitudes on the validation rows.
+    const Matrix& validationFitted(const std::vector<FeatureGroup>& groups)
+    {
+        fillFeatures(groups, m_validationInputs, m_validationState, m_validationFeatures);
+        m_validationFitted.noalias() = m_validationFeatures * m_amplitudes;
+        return m_validationFitted;
+    }
+
     /// RMSE of the last solve on the training rows, standardised units.
     double trainingRmse()
     {
-        m_residual.noalias() = m_features * m_amplitudes;
-        m_residual -= m_targets;
-        return std::sqrt(m_residual.squaredNorm() / static_cast<double>(m_residual.size()));
+        return std::sqrt((fitted() - m_targets).squaredNorm() / static_cast<double>(m_targets.size()));
     }
 
     /// RMSE of `groups` with the last solve's amplitudes on the validation rows.
     double validationRmse(const std::vector<FeatureGroup>& groups)
     {
-        fillFeatures(groups, m_validationInputs, m_validationFeatures);
-        m_validationResidual.noalias() = m_validationFeatures * m_amplitudes;
-        m_validationResidual -= m_validationTargets;
-        return std::sqrt(m_validationResidual.squaredNorm() / static_cast<double>(m_validationResidual.size()));
+        return std::sqrt((validationFitted(groups) - m_validationTargets).squaredNorm() /
+                         static_cast<double>(m_validationTargets.size()));
     }
 
     /// Forwards to the progress callback; throws Cancelled when it says stop.
@@ -109,7 +139,8 @@ public:
     }
 
 private:
-    void fillFeatures(const std::vector<FeatureGroup>& groups, const Matrix& inputs, Matrix& features)
+    void fillFeatures(const std::vector<FeatureGroup>& groups, const Matrix& inputs, const Matrix& state,
+                      Matrix& features)
     {
         Index count = 0;
         for (const auto& group : groups)
@@ -117,8 +148,9 @@ private:
         features.resize(inputs.rows(), count);  // no reallocation when the shape repeats
         const RowBlocks blocks(inputs.rows(), 256, 64);
         m_solver.reduction().run(blocks.count, [&](Index b) {
-            layerFeatures(groups, inputs.middleRows(blocks.begin(b), blocks.size(b)),
-                          features.middleRows(blocks.begin(b), blocks.size(b)));
+            const Index begin = blocks.begin(b), size = blocks.size(b);
+            layerFeatures(groups, inputs.middleRows(begin, size), state.middleRows(begin, size),
+                          features.middleRows(begin, size));
         });
     }
 
@@ -126,16 +158,18 @@ private:
     Matrix m_targets;
     double m_lambda;
     Solver m_solver;
+    Matrix m_state;
     Matrix m_validationInputs;
     Matrix m_validationTargets;
+    Matrix m_validationState;
     Progress m_progress;
 
     Matrix m_features;
     Matrix m_amplitudes;
     Vector m_norms;
-    Matrix m_residual;
+    Matrix m_fitted;
     Matrix m_validationFeatures;
-    Matrix m_validationResidual;
+    Matrix m_validationFitted;
 };
 
 }  // namespace wavestack
