@@ -82,6 +82,27 @@ TEST_CASE("ridge solutions match Eigen's SVD on ill-conditioned problems (QR pat
     }
 }
 
+TEST_CASE("the training setting keeps fitted values accurate where amplitudes are not")
+{
+    // cond(Phi^T Phi / N + lambda) about 3e10: past the default threshold
+    // (QR) but not past fastTraining()'s (Cholesky). The amplitudes then
+    // differ from the SVD solution by about 1e-6, the fitted values by far less.
+    Random random(17);
+    const Vector singular = Eigen::VectorXd::LinSpaced(30, 0.0, -7.0).unaryExpr([](double e) {
+        return std::pow(10.0, e);
+    });
+    const Matrix phi = withSingularValues(300, singular, random);
+    const Matrix r = randomMatrix(300, 2, random);
+    RidgeSolver<> solver(RidgeSettings::fastTraining());
+    Matrix b;
+    solver.solve(phi, r, 1e-13, b);
+    CHECK(solver.lastPath() == SolvePath::cholesky);
+    const Matrix reference = svdReference(phi, r, 1e-13);
+    MESSAGE("amplitudes differ by " << relativeDifference(b, reference) << ", fitted values by "
+                                    << relativeDifference(phi * b, phi * reference));
+    CHECK(relativeDifference(phi * b, phi * reference) < 1e-6);
+}
+
 TEST_CASE("QR is used when the width is not small against the number of points")
 {
     Random random(13);

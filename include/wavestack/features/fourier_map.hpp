@@ -11,7 +11,10 @@
 ///     has d + hasOffset entries;
 ///   - `activate(first, second, n)`: turns n angles stored at `first` into
 ///     the features: feature 0 overwrites `first`, feature 1 (if any) goes
-///     to `second`.
+///     to `second`;
+///   - `slope(first, second, dFirst, dSecond, n)`: from activated features,
+///     their derivatives with respect to the angle (for input gradients and
+///     fine-tuning).
 /// FeatureGroup (features/feature_group.hpp) builds feature matrices and the
 /// network's kernels from these members alone.
 
@@ -28,6 +31,16 @@ struct FourierMap {
     static void activate(double* first, double* second, Index count) noexcept
     {
         detail::sincos(first, second, first, count);  // cosine over the angle, sine beside it
+    }
+
+    /// d cos a / da = -sin a, d sin a / da = cos a.
+    static void slope(const double* first, const double* second, double* dFirst, double* dSecond,
+                      Index count) noexcept
+    {
+        for (Index i = 0; i < count; ++i) {
+            dFirst[i] = -second[i];
+            dSecond[i] = first[i];
+        }
     }
 };
 

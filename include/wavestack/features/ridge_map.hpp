@@ -32,6 +32,14 @@ struct RidgeMap {
         for (; i < count; ++i)
             first[i] = std::tanh(first[i]);
     }
+
+    /// d tanh a / da = 1 - tanh^2 a.
+    static void slope(const double* first, const double* /*second*/, double* dFirst, double* /*dSecond*/,
+                      Index count) noexcept
+    {
+        for (Index i = 0; i < count; ++i)
+            dFirst[i] = 1.0 - first[i] * first[i];
+    }
 };
 
 }  // namespace wavestack

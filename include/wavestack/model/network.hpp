@@ -15,7 +15,9 @@
 #include "wavestack/core/error.hpp"
 #include "wavestack/core/types.hpp"
 #include "wavestack/detail/simd.hpp"
+#include "wavestack/model/domain.hpp"
 #include "wavestack/model/layer.hpp"
+#include "wavestack/model/record.hpp"
 #include "wavestack/model/scaler.hpp"
 
 namespace wavestack {
@@ -92,6 +94,56 @@ public:
     /// The initial layer, f0.
     const Layer& layer() const { return m_layers.front(); }
     StateInput stateInput() const { return m_stateInput; }
+
+    /// Where the training inputs lay (empty for a hand-built network).
+    const TrainingDomain& domain() const { return m_domain; }
+    void setDomain(TrainingDomain domain)
+    {
+        if (!domain.empty() && domain.inputCount() != inputCount())
+            throw InvalidInput("Network::setDomain: the domain has " + std::to_string(domain.inputCount()) +
+                               " inputs, the network " + std::to_string(inputCount()));
+        m_domain = std::move(domain);
+    }
+    /// Names, held-out metrics, settings and training curve; not used in evaluation.
+    const ModelRecord& record() const { return m_record; }
+    void setRecord(ModelRecord record) { m_record = std::move(record); }
+
+    /// One point, and whether x lies outside the training box (always false
+    /// without a domain). Same cost as evaluate plus d comparisons.
+    bool evaluateChecked(const double* x, double* y) const
+    {
+        evaluate(x, y);
+        return !m_domain.empty() && m_domain.outsideBox(x);
+    }
+
+    /// One point with its Jacobian: y = f(x) (outputCount() values) and
+    /// jacobian[o * inputCount() + j] = d y_o / d x_j (row-major m x d),
+    /// analytic through the scaler and every layer of the recursion.
+    void evaluateWithJacobian(const double* x, double* y, double* jacobian) const
+    {
+        const Index d = inputCount(), m = outputCount();
+        const Eigen::Map<const Vector> point(x, d);
+        Vector f0 = Vector::Zero(m), z = Vector::Zero(m), s(m);
+        Matrix jf0 = Matrix::Zero(m, d), jz = Matrix::Zero(m, d), js(m, d);
+        const Matrix identity = Matrix::Identity(d, d);
+        for (const auto& kernel : m_kernels.front())
+            accumulateWithJacobian(kernel, point, identity, f0, jf0);
+        for (std::size_t l = 1; l < m_layers.size(); ++l) {
+            const bool prediction = m_stateInput == StateInput::runningPrediction;
+            s = prediction ? Vector(f0 + z) : z;
+            js = prediction ? Matrix(jf0 + jz) : jz;
+            for (const auto& kernel : m_kernels[l]) {
+                if (kernel.source == FeatureSource::input)
+                    accumulateWithJacobian(kernel, point, identity, z, jz);
+                else
+                    accumulateWithJacobian(kernel, s, js, z, jz);
+            }
+        }
+        const auto& deviation = m_outputScaler.deviation();
+        Eigen::Map<Vector>(y, m) = m_outputScaler.mean() + deviation.cwiseProduct(f0 + z);
+        Eigen::Map<Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor>>(jacobian, m, d) =
+            deviation.asDiagonal() * (jf0 + jz);
+    }
 
     /// One point: reads inputCount() values at x, writes outputCount() at y.
     /// No checks, and no allocation up to maxStackOutputs outputs.
@@ -259,6 +311,31 @@ private:
         }
     }
 
+    /// out += features(source) * amplitudes and jacobian += d out / d x, where
+    /// sourceJacobian = d source / d x (identity for the inputs: the scaler is
+    /// folded into the slopes).
+    static void accumulateWithJacobian(const Kernel& kernel, const Vector& source, const Matrix& sourceJacobian,
+                                       Vector& out, Matrix& jacobian)
+    {
+        const Index width = kernel.slopes.rows();
+        Vector first = kernel.slopes * source + kernel.phase, second(width), dFirst(width), dSecond(width);
+        withFeatureMap(kernel.kind, [&](auto map) {
+            using Map = decltype(map);
+            Map::activate(first.data(), second.data(), width);
+            Map::slope(first.data(), second.data(), dFirst.data(), dSecond.data(), width);
+            const auto b = kernel.amplitudes.topRows(width);
+            out.noalias() += b.transpose() * first;
+            // d out / d angle (m x K), then through the slopes and the source.
+            Matrix weights = b.transpose() * dFirst.asDiagonal();
+            if constexpr (Map::featuresPerParameter == 2) {
+                const auto b2 = kernel.amplitudes.middleRows(width, width);
+                out.noalias() += b2.transpose() * second;
+                weights.noalias() += b2.transpose() * dSecond.asDiagonal();
+            }
+            jacobian.noalias() += weights * kernel.slopes * sourceJacobian;
+        });
+    }
+
     static void accumulateBatch(const Kernel& kernel, const MatrixView& source, Matrix& scratch,
                                 Eigen::Ref<Matrix> out)
     {
@@ -287,6 +364,8 @@ private:
     OutputScaler m_outputScaler;
     std::vector<Layer> m_layers;
     StateInput m_stateInput = StateInput::runningPrediction;
+    TrainingDomain m_domain;
+    ModelRecord m_record;
     std::vector<std::vector<Kernel>> m_kernels;  // derived from the above: one per group, per layer
 };
 

@@ -27,10 +27,20 @@ struct RidgeSettings {
     /// QR is used when P > qrWidthFraction * N ("P not small against N").
     double qrWidthFraction = 0.25;
     /// QR is used when Cholesky's reciprocal condition estimate of the
-    /// regularised Gram matrix falls below this. Cholesky's relative
-    /// error in the amplitudes is about eps / rcond, so 1e-8 keeps it
-    /// near 1e-8 or better.
+    /// regularised Gram matrix falls below this. Cholesky's relative error in
+    /// the amplitudes grows like eps / rcond, so 1e-8 keeps it near 1e-8. The
+    /// fitted values Phi b stay accurate far longer (the error lies along the
+    /// Gram matrix's smallest eigenvectors, which Phi maps to small values),
+    /// so training, which needs fitted values and solves thousands of times,
+    /// uses 1e-12 (fastTraining()): QR costs about 10x more at N >> P.
     double minReciprocalCondition = 1e-8;
+
+    static RidgeSettings fastTraining()
+    {
+        RidgeSettings settings;
+        settings.minReciprocalCondition = 1e-12;
+        return settings;
+    }
 };
 
 /// Gram matrix + Cholesky when P is small against N and the regularised Gram

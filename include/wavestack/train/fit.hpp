@@ -8,6 +8,8 @@
 #include <cstdint>
 #include <functional>
 #include <optional>
+#include <sstream>
+#include <type_traits>
 #include <string>
 #include <utility>
 #include <vector>
@@ -17,7 +19,10 @@
 #include "wavestack/core/types.hpp"
 #include "wavestack/core/validate.hpp"
 #include "wavestack/features/feature_group.hpp"
+#include "wavestack/check/metrics.hpp"
+#include "wavestack/model/domain.hpp"
 #include "wavestack/model/network.hpp"
+#include "wavestack/model/record.hpp"
 #include "wavestack/model/scaler.hpp"
 #include "wavestack/parallel/reduction.hpp"
 #include "wavestack/sampling/gaussian_sampler.hpp"
@@ -89,6 +94,8 @@ struct FitOptions {
     Index threads = 1;
     /// Box mapped to [-1, 1]^d; the training data's bounding box when empty.
     std::optional<InputBox> inputBox;
+    /// Names stored with the model (empty: x0, x1, ... and y0, y1, ...).
+    std::vector<std::string> inputNames, outputNames;
     /// Called during training; return false to stop (fit then throws Cancelled).
     std::function<bool(const FitProgress&)> progress;
 };
@@ -127,6 +134,12 @@ inline void checkTrainingData(const MatrixView& inputs, const MatrixView& output
                            std::to_string(options.patience));
     requireFinite(inputs, "fit: inputs");
     requireFinite(outputs, "fit: outputs");
+    if ((!options.inputNames.empty() && Index(options.inputNames.size()) != inputs.cols()) ||
+        (!options.outputNames.empty() && Index(options.outputNames.size()) != outputs.cols()))
+        throw InvalidInput("fit: " + std::to_string(options.inputNames.size()) + " input names and " +
+                           std::to_string(options.outputNames.size()) + " output names for " +
+                           std::to_string(inputs.cols()) + " inputs and " + std::to_string(outputs.cols()) +
+                           " outputs");
     if (options.inputBox && options.inputBox->lower.size() != inputs.cols())
         throw InvalidInput("fit: the input box has " + std::to_string(options.inputBox->lower.size()) +
                            " entries but the data have " + std::to_string(inputs.cols()) + " inputs");
@@ -142,6 +155,28 @@ inline std::vector<GroupShape> groupShapes(FeatureMix mix, Index width)
     default:
         return {{FeatureKind::fourier, width / 2}, {FeatureKind::ridge, width - width / 2}};
     }
+}
+
+template <class Sampler>
+std::string describeSettings(const FitOptions& options, Index stateWidth, const Sampler&)
+{
+    std::ostringstream text;
+    text.precision(17);
+    const char* mix = options.features == FeatureMix::fourier ? "fourier"
+                      : options.features == FeatureMix::ridge ? "ridge"
+                                                              : "both";
+    text << "width = " << options.width << "\nfeatures = " << mix << "\nlambda = " << options.lambda
+         << "\nlayers = " << options.layers << "\nstate width = " << stateWidth
+         << "\nstate input = " << stateInputName(options.stateInput) << "\nsampler = "
+         << (std::is_same_v<Sampler, MetropolisSampler> ? "metropolis"
+             : std::is_same_v<Sampler, GaussianSampler> ? "gaussian"
+                                                        : "custom")
+         << "\nfrequency stddev = " << options.frequencyStddev << "\nvalidation fraction = "
+         << options.validationFraction << "\nseed = " << options.seed << "\n";
+    if (std::is_same_v<Sampler, MetropolisSampler>)
+        text << "metropolis iterations = " << options.metropolis.iterations << "\nmetropolis lambda = "
+             << options.metropolis.lambda << "\nmetropolis step cap = " << options.metropolis.maxStep << "\n";
+    return text.str();
 }
 
 /// Seeded permutation of 0..n-1 (Fisher-Yates).
@@ -209,11 +244,12 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
     };
 
     using Solver = RidgeSolver<ThreadReduction>;
-    const Solver solver(RidgeSettings(), ThreadReduction(options.threads));
+    const Solver solver(RidgeSettings::fastTraining(), ThreadReduction(options.threads));
     const Index m = outputs.cols();
     Matrix initial = Matrix::Zero(u.rows(), m), heldInitial = Matrix::Zero(held, m);   // f0
     Matrix residual = Matrix::Zero(u.rows(), m), heldResidual = Matrix::Zero(held, m); // z
     std::vector<Layer> layers;
+    std::vector<TrainingStep> history;
     double trainingError = rmse(y), bestHeldError = rmse(heldY);
     std::size_t bestCount = 1;
     const Index stateWidth = options.stateWidth > 0 ? options.stateWidth : std::max<Index>(1, options.width / 4);
@@ -254,6 +290,7 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
         trainingError = error;
         layers.push_back(std::move(layer));
         const double heldError = rmse(heldY - heldInitial - heldResidual);
+        history.push_back(TrainingStep{l, trainingError, heldError});
         report(FitProgress{"layer", l, 0.0, SamplerProgress(), trainingError, heldError});
 
         if (held > 0) {
@@ -266,9 +303,27 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
             }
         }
     }
-    if (held > 0)
+    if (held > 0) {
         layers.resize(bestCount);  // the best prefix on held-out rows
-    return Network(std::move(inputScaler), std::move(outputScaler), std::move(layers), options.stateInput);
+        history.resize(bestCount);
+    }
+    Network network(std::move(inputScaler), std::move(outputScaler), std::move(layers), options.stateInput);
+    network.setDomain(TrainingDomain::fromData(inputs));
+    ModelRecord record;
+    record.inputNames = options.inputNames;
+    record.outputNames = options.outputNames;
+    record.settings = detail::describeSettings(options, stateWidth, sampler);
+    record.history = std::move(history);
+    if (held > 0) {
+        // Back in the user's units: unscale the held-out rows.
+        const Matrix heldInputs = (heldU.rowwise() - network.inputScaler().offset().transpose()) *
+                                  network.inputScaler().scale().cwiseInverse().asDiagonal();
+        const Matrix heldOutputs = (heldY * network.outputScaler().deviation().asDiagonal()).rowwise() +
+                                   network.outputScaler().mean().transpose();
+        record.heldOutMetrics = measureColumnErrors(network.evaluateBatch(heldInputs), heldOutputs);
+    }
+    network.setRecord(std::move(record));
+    return network;
 }
 
 /// Fits with the built-in sampler that options.sampler names.

@@ -1,0 +1,32 @@
+#pragma once
+/// \file
+/// What a model remembers of its training: names, held-out metrics, the
+/// settings used and the training curve. Saved with the model; never used
+/// in evaluation.
+
+#include <string>
+#include <vector>
+
+#include "wavestack/check/metrics.hpp"
+#include "wavestack/core/types.hpp"
+
+namespace wavestack {
+
+/// One point of the training curve: the network after a layer was added.
+struct TrainingStep {
+    Index layer = 0;
+    double trainingRmse = 0.0;    ///< standardised output units
+    double validationRmse = -1.0; ///< standardised output units; -1 without a held-out split
+};
+
+struct ModelRecord {
+    std::vector<std::string> inputNames;   ///< empty: x0, x1, ...
+    std::vector<std::string> outputNames;  ///< empty: y0, y1, ...
+    /// Per output, measured on the held-out rows at fit time (original units); empty without a split.
+    std::vector<ErrorMetrics> heldOutMetrics;
+    /// Training settings, one "key = value" per line.
+    std::string settings;
+    std::vector<TrainingStep> history;
+};
+
+}  // namespace wavestack
