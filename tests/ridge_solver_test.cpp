@@ -106,7 +106,7 @@ TEST_CASE("the training setting keeps fitted values accurate where amplitudes ar
 TEST_CASE("QR is used when the width is not small against the number of points")
 {
     Random random(13);
-    const Matrix phi = randomMatrix(100, 60, random);
+    const Matrix phi = randomMatrix(100, 60, random);  // 60 > 0.5 * 100
     const Matrix r = randomMatrix(100, 1, random);
     RidgeSolver<> solver;
     Matrix b;

@@ -24,8 +24,10 @@ enum class SolvePath { cholesky, qr };
 
 /// Tuning of RidgeSolver's choice between its two paths.
 struct RidgeSettings {
-    /// QR is used when P > qrWidthFraction * N ("P not small against N").
-    double qrWidthFraction = 0.25;
+    /// QR is used when P > qrWidthFraction * N ("P not small against N"):
+    /// there the Gram matrix costs as much as QR and squares a condition
+    /// number that P close to N makes large.
+    double qrWidthFraction = 0.5;
     /// QR is used when Cholesky's reciprocal condition estimate of the
     /// regularised Gram matrix falls below this. Cholesky's relative error in
     /// the amplitudes grows like eps / rcond, so 1e-8 keeps it near 1e-8. The
@@ -106,8 +108,13 @@ private:
         rhs.topRows(points) = rowScale * targets;
         if (extra > 0)
             stacked.bottomRows(extra) = std::sqrt(lambda) * Matrix::Identity(width, width);
-        Eigen::ColPivHouseholderQR<Matrix> qr(stacked);
-        amplitudes = qr.solve(rhs);
+        if (extra > 0) {
+            // sqrt(lambda) I makes the stacked matrix full rank: blocked Householder QR.
+            amplitudes = Eigen::HouseholderQR<Matrix>(stacked).solve(rhs);
+        } else {
+            // lambda = 0 may leave Phi rank-deficient: column pivoting finds a basic solution.
+            amplitudes = Eigen::ColPivHouseholderQR<Matrix>(stacked).solve(rhs);
+        }
         m_lastPath = SolvePath::qr;
         requireFiniteResult(amplitudes);
     }

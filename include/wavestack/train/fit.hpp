@@ -29,6 +29,7 @@
 #include "wavestack/sampling/metropolis_sampler.hpp"
 #include "wavestack/solve/ridge_solver.hpp"
 #include "wavestack/train/layer_problem.hpp"
+#include "wavestack/train/tune.hpp"
 
 namespace wavestack {
 
@@ -39,6 +40,12 @@ enum class FeatureMix {
     both,     ///< half the width each: Fourier for smooth parts, ridge for fronts
 };
 
+/// How the network's parameters start before optional Adam tuning.
+enum class Initialization {
+    layerByLayer,  ///< sampled and solved layer by layer on the residuals (boosting)
+    glorot,        ///< Glorot & Bengio 2010 uniform, the usual start for training by Adam alone
+};
+
 /// Where frequencies come from in the built-in samplers.
 enum class SamplerKind { gaussian, metropolis };
 
@@ -47,13 +54,15 @@ struct FitProgress {
     /// "sampling": once per sampler iteration of a layer; "layer": a layer
     /// was added; "dropped": a layer would have raised the training error
     /// (numerical trouble) and was left out; "stopped": the held-out error
-    /// stopped improving and later layers were not trained.
+    /// stopped improving and later layers were not trained; "tuning": once
+    /// per Adam epoch (see `tuning`).
     std::string stage;
     Index layer = 0;               ///< 0 is the initial layer
     double seconds = 0.0;          ///< wall time since fit started
     SamplerProgress sampler;       ///< the sampler's last report (stage "sampling")
     double trainingRmse = -1.0;    ///< network so far, training rows, standardised units
     double validationRmse = -1.0;  ///< the same on the held-out rows; -1 without a split
+    TuneProgress tuning;           ///< the tuner's last report (stage "tuning")
 };
 
 struct FitOptions {
@@ -94,6 +103,11 @@ struct FitOptions {
     Index threads = 1;
     /// Box mapped to [-1, 1]^d; the training data's bounding box when empty.
     std::optional<InputBox> inputBox;
+    /// Layer-by-layer training (the default) or Glorot initialisation; the
+    /// latter only makes sense with tune.epochs > 0.
+    Initialization initialization = Initialization::layerByLayer;
+    /// Global fine-tuning by Adam after the layers are built (off by default).
+    TuneOptions tune;
     /// Names stored with the model (empty: x0, x1, ... and y0, y1, ...).
     std::vector<std::string> inputNames, outputNames;
     /// Called during training; return false to stop (fit then throws Cancelled).
@@ -171,12 +185,45 @@ std::string describeSettings(const FitOptions& options, Index stateWidth, const 
          << (std::is_same_v<Sampler, MetropolisSampler> ? "metropolis"
              : std::is_same_v<Sampler, GaussianSampler> ? "gaussian"
                                                         : "custom")
-         << "\nfrequency stddev = " << options.frequencyStddev << "\nvalidation fraction = "
+         << "\ninitialization = " << (options.initialization == Initialization::glorot ? "glorot" : "layer-by-layer")
+         << "\ntune epochs = " << options.tune.epochs << "\ntune rates (frequency, amplitude) = "
+         << options.tune.frequencyRate << ", " << options.tune.amplitudeRate << "\ntune batch = "
+         << options.tune.batchSize << "\nfrequency stddev = " << options.frequencyStddev << "\nvalidation fraction = "
          << options.validationFraction << "\nseed = " << options.seed << "\n";
     if (std::is_same_v<Sampler, MetropolisSampler>)
         text << "metropolis iterations = " << options.metropolis.iterations << "\nmetropolis lambda = "
              << options.metropolis.lambda << "\nmetropolis step cap = " << options.metropolis.maxStep << "\n";
     return text.str();
+}
+
+/// Layers of the shape layer-by-layer training would build, with Glorot &
+/// Bengio (2010) uniform parameters: U(-a, a), a = sqrt(6 / (fan in + fan
+/// out)); ridge offsets start at 0.
+inline std::vector<Layer> glorotLayers(const FitOptions& options, Index d, Index m, Index stateWidth, Random& random)
+{
+    auto uniform = [&](Matrix& a, double limit) {
+        for (Index i = 0; i < a.size(); ++i)
+            a.data()[i] = limit * (2.0 * random.uniform() - 1.0);
+    };
+    std::vector<Layer> layers;
+    for (Index l = 0; l <= options.layers; ++l) {
+        std::vector<GroupShape> shapes = groupShapes(options.features, options.width);
+        if (l > 0)
+            shapes.push_back(GroupShape{FeatureKind::fourier, stateWidth, FeatureSource::state});
+        Layer layer;
+        for (const GroupShape& shape : shapes) {
+            const Index source = shape.source == FeatureSource::input ? d : m;
+            FeatureGroup group{shape.kind, Matrix(shape.width, parameterSize(shape.kind, source)), shape.source};
+            uniform(group.parameters, std::sqrt(6.0 / double(source + shape.width)));
+            if (group.parameters.cols() > source)
+                group.parameters.col(source).setZero();
+            layer.groups.push_back(std::move(group));
+        }
+        layer.amplitudes.resize(layer.featureCount(), m);
+        uniform(layer.amplitudes, std::sqrt(6.0 / double(layer.featureCount() + m)));
+        layers.push_back(std::move(layer));
+    }
+    return layers;
 }
 
 /// Seeded permutation of 0..n-1 (Fisher-Yates).
@@ -254,7 +301,7 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
     std::size_t bestCount = 1;
     const Index stateWidth = options.stateWidth > 0 ? options.stateWidth : std::max<Index>(1, options.width / 4);
 
-    for (Index l = 0; l <= options.layers; ++l) {
+    for (Index l = 0; options.initialization == Initialization::layerByLayer && l <= options.layers; ++l) {
         const double lambda = l < Index(options.layerLambda.size()) ? options.layerLambda[std::size_t(l)]
                                                                      : options.lambda;
         // What the earlier layers left unexplained, and the state the layer reads.
@@ -303,9 +350,22 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
             }
         }
     }
-    if (held > 0) {
+    if (held > 0 && options.initialization == Initialization::layerByLayer) {
         layers.resize(bestCount);  // the best prefix on held-out rows
         history.resize(bestCount);
+    }
+    if (options.initialization == Initialization::glorot)
+        layers = detail::glorotLayers(options, u.cols(), m, stateWidth, random);
+    if (options.tune.epochs > 0) {
+        TuneOptions tuning = options.tune;
+        tuning.progress = [&](const TuneProgress& t) {
+            FitProgress progress{"tuning", Index(layers.size()) - 1, 0.0, SamplerProgress(), std::sqrt(t.trainingMse),
+                                 t.validationMse >= 0.0 ? std::sqrt(t.validationMse) : -1.0, t};
+            report(progress);
+            return true;
+        };
+        layers = tuneLayers(std::move(layers), options.stateInput, u, y, heldU, heldY, tuning, random,
+                            ThreadReduction(options.threads));
     }
     Network network(std::move(inputScaler), std::move(outputScaler), std::move(layers), options.stateInput);
     network.setDomain(TrainingDomain::fromData(inputs));
