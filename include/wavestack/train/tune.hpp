@@ -33,10 +33,11 @@ struct TuneOptions {
     Index epochs = 0;
     Index batchSize = 256;
     /// Learning rates after warm-up, for frequencies and ridge offsets and
-    /// for amplitudes. Separate rates let the amplitudes (a convex part of
-    /// the problem) move faster than the frequencies (see DEVELOPERS.md).
-    double frequencyRate = 1e-3;
-    double amplitudeRate = 1e-3;
+    /// for amplitudes (separately settable; measured in DEVELOPERS.md). 3e-3
+    /// was best of {1e-3, 3e-3, 1e-2} on the Si-front (1e-2 diverged there)
+    /// and second best on an oblique ridge front.
+    double frequencyRate = 3e-3;
+    double amplitudeRate = 3e-3;
     /// Steps of linear warm-up from 0, then a cosine decay to
     /// finalRateFraction of the rate at the last step.
     Index warmupSteps = 100;
