@@ -13,7 +13,11 @@
 #include <wavestack/wavestack.hpp>
 
 // Counting global allocator for this test program: every operator new
-// (any thread) increments the counter.
+// (any thread) increments the counter. new and delete are both replaced
+// (malloc/free), which GCC's -Wmismatched-new-delete cannot see.
+#if defined(__GNUC__) && !defined(__clang__)
+#pragma GCC diagnostic ignored "-Wmismatched-new-delete"
+#endif
 namespace {
 std::atomic<long> allocations{0};
 }

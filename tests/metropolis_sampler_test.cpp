@@ -8,27 +8,14 @@
 #include <wavestack/check/test_functions.hpp>
 #include <wavestack/wavestack.hpp>
 
+#include "test_support.hpp"
+
 using namespace wavestack;
 
 namespace {
 
-struct Data {
-    Matrix x, y;
-};
-
-/// n points uniform on [-1, 1]^d with y = f(row).
-template <class F>
-Data uniformData(Index n, Index d, std::uint64_t seed, F f)
-{
-    Random random(seed);
-    Data data{Matrix(n, d), Matrix(n, 1)};
-    for (Index i = 0; i < n; ++i) {
-        for (Index j = 0; j < d; ++j)
-            data.x(i, j) = 2.0 * random.uniform() - 1.0;
-        data.y(i, 0) = f(data.x.row(i));
-    }
-    return data;
-}
+using Data = testing::Sample;
+using testing::uniformSample;
 
 /// The regularised discontinuity Si(x_1 / a) exp(-|x|^2 / 2), x ~ N(0, I_d).
 Data siFrontData(Index n, int d, double a, std::uint64_t seed)
@@ -63,8 +50,8 @@ TEST_CASE("the chain moves frequencies to a single frequency far from the initia
     // Target cos(40 u): its transform is two spikes at +-40, while the initial
     // draw is N(0, 3^2). Exact single-mode target (common practice).
     auto target = [](const auto& u) { return std::cos(40.0 * u[0]); };
-    const Data train = uniformData(2000, 1, 1, target);
-    const Data test = uniformData(5000, 1, 2, target);
+    const Data train = uniformSample(2000, 1, 1, target);
+    const Data test = uniformSample(5000, 1, 2, target);
     FitOptions options = unitBoxOptions(1);
     options.width = 16;
     options.validationFraction = 0.2;
@@ -113,8 +100,8 @@ TEST_CASE("ridge features driven by the same chain resolve an oblique front that
     v << 1.0, 2.0, -1.0, 0.5;
     v.normalize();
     auto target = [&](const auto& u) { return std::tanh((u.dot(v.transpose()) - 0.3) / 0.05); };
-    const Data train = uniformData(5000, 4, 7, target);
-    const Data test = uniformData(20000, 4, 8, target);
+    const Data train = uniformSample(5000, 4, 7, target);
+    const Data test = uniformSample(20000, 4, 8, target);
     FitOptions options = unitBoxOptions(4);
     options.width = 32;
     options.sampler = SamplerKind::metropolis;
@@ -144,8 +131,8 @@ TEST_CASE("a layer of both maps, driven by one chain, is at least as good as eit
     auto target = [&](const auto& u) {
         return std::tanh((u.dot(v.transpose()) - 0.3) / 0.05) + std::sin(3.0 * u[0]) * std::cos(2.0 * u[1]);
     };
-    const Data train = uniformData(5000, 4, 9, target);
-    const Data test = uniformData(20000, 4, 10, target);
+    const Data train = uniformSample(5000, 4, 9, target);
+    const Data test = uniformSample(20000, 4, 10, target);
     FitOptions options = unitBoxOptions(4);
     options.width = 64;
     options.sampler = SamplerKind::metropolis;
@@ -164,7 +151,7 @@ TEST_CASE("a layer of both maps, driven by one chain, is at least as good as eit
 TEST_CASE("the same seed gives a bit-identical model for one and two threads")
 {
     auto target = [](const auto& u) { return std::sin(3.0 * u[0]) * std::cos(2.0 * u[1]) + std::tanh(8.0 * u[2]); };
-    const Data train = uniformData(3000, 3, 5, target);  // 2400 training rows: several row blocks
+    const Data train = uniformSample(3000, 3, 5, target);  // 2400 training rows: several row blocks
     FitOptions options = unitBoxOptions(3);
     options.width = 40;
     options.features = FeatureMix::both;
@@ -206,7 +193,7 @@ TEST_CASE("a proposal that makes the Gram matrix singular does not abort the cha
     // Width far above N / 4 and lambda = 0: every solve takes the QR path,
     // which handles rank-deficient feature matrices.
     auto target = [](const auto& u) { return u[0] * u[0]; };
-    const Data train = uniformData(40, 1, 6, target);
+    const Data train = uniformSample(40, 1, 6, target);
     FitOptions options = unitBoxOptions(1);
     options.width = 30;  // 60 features for 40 points: Phi is rank-deficient
     options.lambda = 0.0;

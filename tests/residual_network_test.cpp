@@ -10,6 +10,8 @@
 #include <wavestack/check/test_functions.hpp>
 #include <wavestack/wavestack.hpp>
 
+#include "test_support.hpp"
+
 using namespace wavestack;
 
 namespace {
@@ -43,21 +45,12 @@ Network handBuilt(StateInput stateInput)
                    stateInput);
 }
 
-struct Data {
-    Matrix x, y;
-};
+using Data = testing::Sample;
 
 template <class F>
 Data sample(Index n, Index d, std::uint64_t seed, F f)
 {
-    Random random(seed);
-    Data data{Matrix(n, d), Matrix(n, 1)};
-    for (Index i = 0; i < n; ++i) {
-        for (Index j = 0; j < d; ++j)
-            data.x(i, j) = 2.0 * random.uniform() - 1.0;
-        data.y(i, 0) = f(data.x.row(i));
-    }
-    return data;
+    return testing::uniformSample(n, d, seed, f);
 }
 
 }  // namespace

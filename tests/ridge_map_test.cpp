@@ -8,17 +8,13 @@
 #include <wavestack/features/feature_group.hpp>
 #include <wavestack/model/layer.hpp>
 
+#include "test_support.hpp"
+
 using namespace wavestack;
 
 namespace {
 
-Matrix randomMatrix(Index rows, Index cols, double scale, Random& random)
-{
-    Matrix a(rows, cols);
-    for (Index i = 0; i < a.size(); ++i)
-        a.data()[i] = scale * random.normal();
-    return a;
-}
+using testing::randomNormal;
 
 }  // namespace
 
@@ -26,8 +22,8 @@ TEST_CASE("ridge features are tanh(w . u + c), a row being (w, c)")
 {
     Random random(1);
     const Index n = 29, d = 3, k = 6;
-    const Matrix u = randomMatrix(n, d, 1.0, random);
-    const FeatureGroup group{FeatureKind::ridge, randomMatrix(k, d + 1, 4.0, random)};
+    const Matrix u = randomNormal(n, d, 1.0, random);
+    const FeatureGroup group{FeatureKind::ridge, randomNormal(k, d + 1, 4.0, random)};
     CHECK(parameterSize(FeatureKind::ridge, d) == d + 1);
     CHECK(group.featureCount() == k);
     Matrix phi(n, k);
@@ -45,11 +41,11 @@ TEST_CASE("a layer of both maps lays their features side by side and measures ea
     Random random(2);
     const Index n = 10, d = 2;
     Layer layer;
-    layer.groups = {FeatureGroup{FeatureKind::fourier, randomMatrix(3, d, 2.0, random)},
-                    FeatureGroup{FeatureKind::ridge, randomMatrix(2, d + 1, 2.0, random)}};
+    layer.groups = {FeatureGroup{FeatureKind::fourier, randomNormal(3, d, 2.0, random)},
+                    FeatureGroup{FeatureKind::ridge, randomNormal(2, d + 1, 2.0, random)}};
     CHECK(layer.featureCount() == 3 * 2 + 2);
     CHECK(layer.width() == 5);
-    const Matrix u = randomMatrix(n, d, 1.0, random);
+    const Matrix u = randomNormal(n, d, 1.0, random);
     Matrix phi(n, layer.featureCount());
     layer.features(u, Matrix(n, 0), phi);
     Matrix fourier(n, 6), ridge(n, 2);
@@ -59,7 +55,7 @@ TEST_CASE("a layer of both maps lays their features side by side and measures ea
     CHECK(phi.rightCols(2) == ridge);
 
     // |b_k|: Fourier row k owns amplitude rows k and 3 + k; ridge row j owns row 6 + j.
-    layer.amplitudes = randomMatrix(8, 2, 1.0, random);
+    layer.amplitudes = randomNormal(8, 2, 1.0, random);
     const Vector norms = layer.amplitudeNorms();
     REQUIRE(norms.size() == 5);
     const Matrix& b = layer.amplitudes;

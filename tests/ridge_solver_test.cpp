@@ -7,18 +7,13 @@
 #include <wavestack/core/random.hpp>
 #include <wavestack/solve/ridge_solver.hpp>
 
+#include "test_support.hpp"
+
 using namespace wavestack;
 
 namespace {
 
-Matrix randomMatrix(Index rows, Index cols, Random& random)
-{
-    Matrix a(rows, cols);
-    for (Index j = 0; j < cols; ++j)
-        for (Index i = 0; i < rows; ++i)
-            a(i, j) = random.normal();
-    return a;
-}
+Matrix randomMatrix(Index rows, Index cols, Random& random) { return testing::randomNormal(rows, cols, 1.0, random); }
 
 /// Features with prescribed singular values: Q1 diag(s) Q2^T with random orthogonal factors.
 Matrix withSingularValues(Index rows, const Vector& singular, Random& random)

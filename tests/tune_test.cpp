@@ -11,17 +11,13 @@
 #include <wavestack/train/gradient.hpp>
 #include <wavestack/wavestack.hpp>
 
+#include "test_support.hpp"
+
 using namespace wavestack;
 
 namespace {
 
-Matrix randomMatrix(Index rows, Index cols, double scale, Random& random)
-{
-    Matrix a(rows, cols);
-    for (Index i = 0; i < a.size(); ++i)
-        a.data()[i] = scale * random.normal();
-    return a;
-}
+using testing::randomNormal;
 
 /// d = 3, m = 2, L = 2 residual layers, K = 5 rows per group; every layer has
 /// Fourier and ridge groups on the input, residual layers also on the state.
@@ -31,15 +27,15 @@ std::vector<Layer> randomLayers(Random& random)
     std::vector<Layer> layers;
     for (int l = 0; l < 3; ++l) {
         Layer layer;
-        layer.groups.push_back(FeatureGroup{FeatureKind::fourier, randomMatrix(k, d, 1.5, random)});
-        layer.groups.push_back(FeatureGroup{FeatureKind::ridge, randomMatrix(k, d + 1, 1.5, random)});
+        layer.groups.push_back(FeatureGroup{FeatureKind::fourier, randomNormal(k, d, 1.5, random)});
+        layer.groups.push_back(FeatureGroup{FeatureKind::ridge, randomNormal(k, d + 1, 1.5, random)});
         if (l > 0) {
             layer.groups.push_back(
-                FeatureGroup{FeatureKind::fourier, randomMatrix(k, m, 1.0, random), FeatureSource::state});
+                FeatureGroup{FeatureKind::fourier, randomNormal(k, m, 1.0, random), FeatureSource::state});
             layer.groups.push_back(
-                FeatureGroup{FeatureKind::ridge, randomMatrix(k, m + 1, 1.0, random), FeatureSource::state});
+                FeatureGroup{FeatureKind::ridge, randomNormal(k, m + 1, 1.0, random), FeatureSource::state});
         }
-        layer.amplitudes = randomMatrix(layer.featureCount(), m, 0.3, random);
+        layer.amplitudes = randomNormal(layer.featureCount(), m, 0.3, random);
         layers.push_back(layer);
     }
     return layers;
@@ -54,7 +50,7 @@ TEST_CASE("the analytic gradient matches central finite differences for every pa
     for (auto stateInput : {StateInput::runningPrediction, StateInput::residualState}) {
         Random random(stateInput == StateInput::runningPrediction ? 1 : 2);
         std::vector<Layer> layers = randomLayers(random);
-        const Matrix u = randomMatrix(40, 3, 0.5, random), y = randomMatrix(40, 2, 1.0, random);
+        const Matrix u = randomNormal(40, 3, 0.5, random), y = randomNormal(40, 2, 1.0, random);
         const double lambda = 1e-3;
         NetworkGradient gradient;
         lossAndGradient(layers, stateInput, u, y, lambda, gradient, SerialReduction());
@@ -90,7 +86,7 @@ TEST_CASE("the gradient is the same for one and two threads")
 {
     Random random(3);
     const std::vector<Layer> layers = randomLayers(random);
-    const Matrix u = randomMatrix(1000, 3, 0.5, random), y = randomMatrix(1000, 2, 1.0, random);
+    const Matrix u = randomNormal(1000, 3, 0.5, random), y = randomNormal(1000, 2, 1.0, random);
     NetworkGradient one, two;
     const double a = lossAndGradient(layers, StateInput::runningPrediction, u, y, 0.0, one, SerialReduction());
     const double b = lossAndGradient(layers, StateInput::runningPrediction, u, y, 0.0, two, ThreadReduction(2));

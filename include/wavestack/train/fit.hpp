@@ -316,7 +316,7 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
             shapes.push_back(GroupShape{FeatureKind::fourier, stateWidth, FeatureSource::state});
         }
         problem.setProgress([&](const SamplerProgress& s) {
-            report(FitProgress{"sampling", l, 0.0, s, s.trainingRmse, s.validationRmse});
+            report(FitProgress{"sampling", l, 0.0, s, s.trainingRmse, s.validationRmse, TuneProgress()});
             return true;
         });
 
@@ -328,7 +328,7 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
         Matrix& target = l == 0 ? initial : residual;
         const double error = rmse(y - initial - residual - fitted);
         if (l > 0 && !(error <= trainingError)) {
-            report(FitProgress{"dropped", l, 0.0, SamplerProgress(), error, -1.0});
+            report(FitProgress{"dropped", l, 0.0, SamplerProgress(), error, -1.0, TuneProgress()});
             continue;
         }
         target += fitted;
@@ -338,14 +338,14 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
         layers.push_back(std::move(layer));
         const double heldError = rmse(heldY - heldInitial - heldResidual);
         history.push_back(TrainingStep{l, trainingError, heldError});
-        report(FitProgress{"layer", l, 0.0, SamplerProgress(), trainingError, heldError});
+        report(FitProgress{"layer", l, 0.0, SamplerProgress(), trainingError, heldError, TuneProgress()});
 
         if (held > 0) {
             if (l == 0 || heldError < bestHeldError) {
                 bestHeldError = heldError;
                 bestCount = layers.size();
             } else if (layers.size() - bestCount >= std::size_t(options.patience)) {
-                report(FitProgress{"stopped", l, 0.0, SamplerProgress(), trainingError, heldError});
+                report(FitProgress{"stopped", l, 0.0, SamplerProgress(), trainingError, heldError, TuneProgress()});
                 break;
             }
         }
