@@ -108,6 +108,78 @@ void scalar(benchmark::State& state)
     benchmark::DoNotOptimize(sink);
 }
 
+/// The float scalar reference: the same loop in single precision.
+float scalarReferenceFloat(const Network& net, const float* x)
+{
+    const Index d = net.inputCount();
+    std::vector<float> u(static_cast<std::size_t>(d));
+    for (Index j = 0; j < d; ++j)
+        u[std::size_t(j)] = float(net.inputScaler().scale()[j]) * x[j] + float(net.inputScaler().offset()[j]);
+    float f0 = 0.0f, z = 0.0f;
+    for (std::size_t l = 0; l < net.layers().size(); ++l) {
+        const Layer& layer = net.layers()[l];
+        const float s = f0 + z;
+        float add = 0.0f;
+        Index row = 0;
+        for (const FeatureGroup& group : layer.groups) {
+            const Index k = group.width();
+            for (Index i = 0; i < k; ++i) {
+                float angle = 0.0f;
+                if (group.source == FeatureSource::input)
+                    for (Index j = 0; j < d; ++j)
+                        angle += float(group.parameters(i, j)) * u[std::size_t(j)];
+                else
+                    angle = float(group.parameters(i, 0)) * s;
+                add += float(layer.amplitudes(row + i, 0)) * std::cos(angle) +
+                       float(layer.amplitudes(row + k + i, 0)) * std::sin(angle);
+            }
+            row += 2 * k;
+        }
+        (l == 0 ? f0 : z) += add;
+    }
+    return f0 + z;
+}
+
+void scalarFloat(benchmark::State& state)
+{
+    const Network net = randomNetwork(state.range(0), state.range(1), state.range(2));
+    const Eigen::MatrixXf x = points(1024, net.inputCount()).transpose().cast<float>();
+    float sink = 0.0f;
+    Index i = 0;
+    for (auto _ : state) {
+        sink += scalarReferenceFloat(net, &x(0, i));
+        i = (i + 1) & 1023;
+    }
+    benchmark::DoNotOptimize(sink);
+}
+
+void singleFloat(benchmark::State& state)
+{
+    const FloatNetwork net(randomNetwork(state.range(0), state.range(1), state.range(2)));
+    const Eigen::MatrixXf x = points(1024, net.inputCount()).transpose().cast<float>();
+    float y, sink = 0.0f;
+    Index i = 0;
+    for (auto _ : state) {
+        net.evaluate(&x(0, i), &y);
+        sink += y;
+        i = (i + 1) & 1023;
+    }
+    benchmark::DoNotOptimize(sink);
+}
+
+void batchedFloat(benchmark::State& state)
+{
+    const FloatNetwork net(randomNetwork(state.range(0), state.range(1), state.range(2)));
+    const Index n = 4096;
+    const Eigen::MatrixXf x = points(n, net.inputCount()).cast<float>();
+    Eigen::MatrixXf y;
+    for (auto _ : state) {
+        y = net.evaluateBatch(x);
+        benchmark::DoNotOptimize(y.data());
+    }
+    state.SetItemsProcessed(state.iterations() * n);
+}
+
 void batched(benchmark::State& state)
 {
     const Network net = randomNetwork(state.range(0), state.range(1), state.range(2));
@@ -138,6 +210,9 @@ void batched(benchmark::State& state)
 // Time per iteration = ns per point for single and scalar; batched reports items/s.
 BENCHMARK(scalar)->Args({2, 64, 2})->Args({8, 256, 4})->Args({10, 512, 5});
 BENCHMARK(single)->Args({2, 64, 2})->Args({8, 256, 4})->Args({10, 512, 5});
+BENCHMARK(scalarFloat)->Args({2, 64, 2})->Args({8, 256, 4})->Args({10, 512, 5});
+BENCHMARK(singleFloat)->Args({2, 64, 2})->Args({8, 256, 4})->Args({10, 512, 5});
+BENCHMARK(batchedFloat)->Args({2, 64, 2})->Args({8, 256, 4})->Args({10, 512, 5})->UseRealTime();
 BENCHMARK(batched)
     ->Args({2, 64, 2, 1})->Args({8, 256, 4, 1})->Args({10, 512, 5, 1})
     ->Args({8, 256, 4, 2})->Args({10, 512, 5, 2})

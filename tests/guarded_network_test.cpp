@@ -59,11 +59,15 @@ TEST_CASE("single-point evaluation allocates nothing")
 {
     const Network net = deepNetwork(3, 2);
     double x[3] = {0.1, 0.2, 0.3}, y[2];
+    const FloatNetwork single(net);
+    float xf[3] = {0.1f, 0.2f, 0.3f}, yf[2];
     const long before = allocations.load();
     for (int i = 0; i < 1000; ++i) {
         x[0] = -0.9 + 0.0018 * i;
+        xf[0] = float(x[0]);
         net.evaluate(x, y);
         net.evaluateChecked(x, y);
+        single.evaluate(xf, yf);
     }
     CHECK(allocations.load() - before == 0);
 }

@@ -16,6 +16,8 @@
 #include "wavestack/parallel/reduction.hpp"
 #include "wavestack/io/model_file.hpp"
 #include "wavestack/model/domain.hpp"
+#include "wavestack/model/evaluator.hpp"
+#include "wavestack/model/float_network.hpp"
 #include "wavestack/model/guarded_network.hpp"
 #include "wavestack/model/layer.hpp"
 #include "wavestack/model/network.hpp"

@@ -28,14 +28,15 @@ struct FourierMap {
     static constexpr Index featuresPerParameter = 2;
     static constexpr bool hasOffset = false;
 
-    static void activate(double* first, double* second, Index count) noexcept
+    template <class T>
+    static void activate(T* first, T* second, Index count) noexcept
     {
         detail::sincos(first, second, first, count);  // cosine over the angle, sine beside it
     }
 
     /// d cos a / da = -sin a, d sin a / da = cos a.
-    static void slope(const double* first, const double* second, double* dFirst, double* dSecond,
-                      Index count) noexcept
+    template <class T>
+    static void slope(const T* first, const T* second, T* dFirst, T* dSecond, Index count) noexcept
     {
         for (Index i = 0; i < count; ++i) {
             dFirst[i] = -second[i];

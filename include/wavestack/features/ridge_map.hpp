@@ -11,9 +11,8 @@
 
 #include <cmath>
 
-#include <xsimd/xsimd.hpp>
-
 #include "wavestack/core/types.hpp"
+#include "wavestack/detail/simd.hpp"
 
 namespace wavestack {
 
@@ -22,23 +21,18 @@ struct RidgeMap {
     static constexpr Index featuresPerParameter = 1;
     static constexpr bool hasOffset = true;
 
-    static void activate(double* first, double* /*second*/, Index count) noexcept
+    template <class T>
+    static void activate(T* first, T* /*second*/, Index count) noexcept
     {
-        using Batch = xsimd::batch<double>;
-        constexpr Index lanes = static_cast<Index>(Batch::size);
-        Index i = 0;
-        for (; i + lanes <= count; i += lanes)
-            xsimd::tanh(Batch::load_unaligned(first + i)).store_unaligned(first + i);
-        for (; i < count; ++i)
-            first[i] = std::tanh(first[i]);
+        detail::tanhInPlace(first, count);
     }
 
     /// d tanh a / da = 1 - tanh^2 a.
-    static void slope(const double* first, const double* /*second*/, double* dFirst, double* /*dSecond*/,
-                      Index count) noexcept
+    template <class T>
+    static void slope(const T* first, const T* /*second*/, T* dFirst, T* /*dSecond*/, Index count) noexcept
     {
         for (Index i = 0; i < count; ++i)
-            dFirst[i] = 1.0 - first[i] * first[i];
+            dFirst[i] = T(1) - first[i] * first[i];
     }
 };
 

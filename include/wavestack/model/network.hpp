@@ -16,22 +16,12 @@
 #include "wavestack/core/types.hpp"
 #include "wavestack/detail/simd.hpp"
 #include "wavestack/model/domain.hpp"
+#include "wavestack/model/evaluator.hpp"
 #include "wavestack/model/layer.hpp"
 #include "wavestack/model/record.hpp"
 #include "wavestack/model/scaler.hpp"
 
 namespace wavestack {
-
-/// What the state-reading feature groups of residual layer l see.
-enum class StateInput {
-    residualState,     ///< s_l = z_l, the published form (the first residual layer sees 0)
-    runningPrediction, ///< s_l = f0 + z_l, the prediction so far
-};
-
-inline const char* stateInputName(StateInput input)
-{
-    return input == StateInput::residualState ? "residual-state" : "running-prediction";
-}
 
 /// A deep residual network of feature layers (Kammonen et al., "Smaller
 /// generalization error derived for a deep residual neural network compared
@@ -45,9 +35,6 @@ inline const char* stateInputName(StateInput input)
 /// with s_l chosen by StateInput. A shallow network is the case of one layer.
 class Network {
 public:
-    /// Outputs the single-point path keeps on the stack; more allocate.
-    static constexpr Index maxStackOutputs = 32;
-
     Network() = default;
 
     Network(InputScaler inputScaler, OutputScaler outputScaler, std::vector<Layer> layers,
@@ -57,16 +44,9 @@ public:
     {
         if (m_layers.empty())
             throw InvalidInput("Network: at least one layer is needed");
-        for (std::size_t l = 0; l < m_layers.size(); ++l) {
+        for (std::size_t l = 0; l < m_layers.size(); ++l)
             checkLayer(l);
-            std::vector<Kernel> kernels;
-            Index column = 0;
-            for (const auto& group : m_layers[l].groups) {
-                kernels.push_back(makeKernel(m_layers[l], group, column));
-                column += group.featureCount();
-            }
-            m_kernels.push_back(std::move(kernels));
-        }
+        m_evaluator = Evaluator<double>(m_inputScaler, m_outputScaler, m_layers, m_stateInput);
     }
 
     /// A shallow network: one layer on the inputs.
@@ -126,13 +106,14 @@ public:
         Vector f0 = Vector::Zero(m), z = Vector::Zero(m), s(m);
         Matrix jf0 = Matrix::Zero(m, d), jz = Matrix::Zero(m, d), js(m, d);
         const Matrix identity = Matrix::Identity(d, d);
-        for (const auto& kernel : m_kernels.front())
+        const auto& kernels = m_evaluator.kernels();
+        for (const auto& kernel : kernels.front())
             accumulateWithJacobian(kernel, point, identity, f0, jf0);
         for (std::size_t l = 1; l < m_layers.size(); ++l) {
             const bool prediction = m_stateInput == StateInput::runningPrediction;
             s = prediction ? Vector(f0 + z) : z;
             js = prediction ? Matrix(jf0 + jz) : jz;
-            for (const auto& kernel : m_kernels[l]) {
+            for (const auto& kernel : kernels[l]) {
                 if (kernel.source == FeatureSource::input)
                     accumulateWithJacobian(kernel, point, identity, z, jz);
                 else
@@ -147,17 +128,7 @@ public:
 
     /// One point: reads inputCount() values at x, writes outputCount() at y.
     /// No checks, and no allocation up to maxStackOutputs outputs.
-    void evaluate(const double* x, double* y) const
-    {
-        const Index m = outputCount();
-        if (m <= maxStackOutputs) {
-            std::array<double, 2 * maxStackOutputs> scratch;
-            evaluate(x, y, scratch.data());
-        } else {
-            std::vector<double> scratch(static_cast<std::size_t>(2 * m));
-            evaluate(x, y, scratch.data());
-        }
-    }
+    void evaluate(const double* x, double* y) const { m_evaluator.evaluate(x, y); }
 
     /// One point, with a size check.
     Vector evaluate(const VectorView& x) const
@@ -173,53 +144,13 @@ public:
     Matrix evaluateBatch(const MatrixView& inputs) const
     {
         requireInputs(inputs.cols(), "Network::evaluateBatch: the inputs' column count");
-        const Index points = inputs.rows();
-        const Index m = outputCount();
-        Matrix outputs(points, m);
-        // Row blocks bound the scratch memory whatever N is.
-        const Index block = std::min<Index>(256, std::max<Index>(points, 1));
-        Index widest = 0;
-        for (const auto& kernels : m_kernels)
-            for (const auto& kernel : kernels)
-                widest = std::max(widest, kernel.amplitudes.rows());
-        Matrix features(block, widest), initial(block, m), residual(block, m), state(block, m);
-        for (Index r0 = 0; r0 < points; r0 += block) {
-            const Index n = std::min(block, points - r0);
-            const auto x = inputs.middleRows(r0, n);
-            auto f0 = initial.topRows(n);
-            auto z = residual.topRows(n);
-            auto s = state.topRows(n);
-            f0.setZero();
-            for (const auto& kernel : m_kernels.front())
-                accumulateBatch(kernel, x, features, f0);
-            z.setZero();
-            for (std::size_t l = 1; l < m_layers.size(); ++l) {
-                if (m_stateInput == StateInput::runningPrediction)
-                    s = f0 + z;
-                else
-                    s = z;
-                for (const auto& kernel : m_kernels[l])
-                    accumulateBatch(kernel, kernel.source == FeatureSource::input ? MatrixView(x) : MatrixView(s),
-                                    features, z);
-            }
-            auto out = outputs.middleRows(r0, n);
-            out = ((f0 + z) * m_outputScaler.deviation().asDiagonal()).rowwise() + m_outputScaler.mean().transpose();
-        }
-        return outputs;
+        return m_evaluator.evaluateBatch(inputs);
     }
 
-private:
-    /// A group laid out for evaluation. Input groups read unscaled x:
-    /// angle_k = (w_k * scale) . x + (w_k . offset + c_k); state groups read
-    /// s as is: angle_k = v_k . s + c_k. Amplitudes stay in standardised units.
-    struct Kernel {
-        FeatureKind kind;
-        FeatureSource source;
-        Matrix slopes;      // K x (d or m)
-        Vector phase;       // K
-        Matrix amplitudes;  // featuresPerParameter * K x m
-    };
+    /// The kernels in double, for evaluation code that needs them.
+    const Evaluator<double>& evaluator() const { return m_evaluator; }
 
+private:
     void checkLayer(std::size_t l) const
     {
         const Layer& layer = m_layers[l];
@@ -241,80 +172,11 @@ private:
                                " outputs");
     }
 
-    /// `column`: the group's first feature column in `layer`.
-    Kernel makeKernel(const Layer& layer, const FeatureGroup& group, Index column) const
-    {
-        const Index sourceCount = group.source == FeatureSource::input ? inputCount() : outputCount();
-        const auto slopes = group.parameters.leftCols(sourceCount);
-        Kernel kernel{group.kind, group.source, slopes, Vector::Zero(group.width()),
-                      layer.amplitudes.middleRows(column, group.featureCount())};
-        if (group.source == FeatureSource::input) {
-            kernel.slopes = slopes * m_inputScaler.scale().asDiagonal();
-            kernel.phase = slopes * m_inputScaler.offset();
-        }
-        if (group.parameters.cols() > sourceCount)
-            kernel.phase += group.parameters.col(sourceCount);
-        return kernel;
-    }
-
-    /// scratch: 2m doubles for f0 and z.
-    void evaluate(const double* x, double* y, double* scratch) const noexcept
-    {
-        const Index m = outputCount();
-        double* f0 = scratch;
-        double* z = scratch + m;
-        std::fill(f0, f0 + 2 * m, 0.0);
-        for (const auto& kernel : m_kernels.front())
-            accumulatePoint(kernel, x, f0);
-        for (std::size_t l = 1; l < m_layers.size(); ++l) {
-            // y holds s_l while layer l adds to z.
-            for (Index o = 0; o < m; ++o)
-                y[o] = m_stateInput == StateInput::runningPrediction ? f0[o] + z[o] : z[o];
-            for (const auto& kernel : m_kernels[l])
-                accumulatePoint(kernel, kernel.source == FeatureSource::input ? x : y, z);
-        }
-        for (Index o = 0; o < m; ++o)
-            y[o] = m_outputScaler.mean()[o] + m_outputScaler.deviation()[o] * (f0[o] + z[o]);
-    }
-
-    static void accumulatePoint(const Kernel& kernel, const double* source, double* y) noexcept
-    {
-        withFeatureMap(kernel.kind, [&](auto map) { accumulatePoint<decltype(map)>(kernel, source, y); });
-    }
-
-    template <class Map>
-    static void accumulatePoint(const Kernel& kernel, const double* source, double* y) noexcept
-    {
-        constexpr Index chunk = 128;  // parameter rows per pass, on the stack
-        alignas(64) double first[chunk];
-        alignas(64) double second[chunk];
-        const Index d = kernel.slopes.cols();
-        const Index width = kernel.slopes.rows();
-        const Index m = kernel.amplitudes.cols();
-        for (Index k0 = 0; k0 < width; k0 += chunk) {
-            const Index n = std::min(chunk, width - k0);
-            const double* phase = kernel.phase.data() + k0;
-            std::copy(phase, phase + n, first);
-            for (Index j = 0; j < d; ++j) {
-                const double xj = source[j];
-                const double* w = &kernel.slopes(k0, j);
-                for (Index k = 0; k < n; ++k)
-                    first[k] += w[k] * xj;
-            }
-            Map::activate(first, second, n);
-            for (Index o = 0; o < m; ++o) {
-                const double* b = &kernel.amplitudes(k0, o);
-                y[o] += detail::dot(b, first, n);
-                if constexpr (Map::featuresPerParameter == 2)
-                    y[o] += detail::dot(b + width, second, n);  // the second feature's amplitudes follow K rows later
-            }
-        }
-    }
-
     /// out += features(source) * amplitudes and jacobian += d out / d x, where
     /// sourceJacobian = d source / d x (identity for the inputs: the scaler is
     /// folded into the slopes).
-    static void accumulateWithJacobian(const Kernel& kernel, const Vector& source, const Matrix& sourceJacobian,
+    static void accumulateWithJacobian(const detail::Kernel<double>& kernel, const Vector& source,
+                                       const Matrix& sourceJacobian,
                                        Vector& out, Matrix& jacobian)
     {
         const Index width = kernel.slopes.rows();
@@ -336,23 +198,6 @@ private:
         });
     }
 
-    static void accumulateBatch(const Kernel& kernel, const MatrixView& source, Matrix& scratch,
-                                Eigen::Ref<Matrix> out)
-    {
-        const Index n = source.rows();
-        const Index width = kernel.slopes.rows();
-        auto features = scratch.block(0, 0, n, kernel.amplitudes.rows());
-        auto angles = features.leftCols(width);
-        angles.noalias() = source * kernel.slopes.transpose();
-        angles.rowwise() += kernel.phase.transpose();
-        withFeatureMap(kernel.kind, [&](auto map) {
-            using Map = decltype(map);
-            for (Index k = 0; k < width; ++k)
-                Map::activate(&features(0, k), Map::featuresPerParameter > 1 ? &features(0, width + k) : nullptr, n);
-        });
-        out.noalias() += features * kernel.amplitudes;
-    }
-
     void requireInputs(Index count, const char* what) const
     {
         if (count != inputCount())
@@ -366,7 +211,7 @@ private:
     StateInput m_stateInput = StateInput::runningPrediction;
     TrainingDomain m_domain;
     ModelRecord m_record;
-    std::vector<std::vector<Kernel>> m_kernels;  // derived from the above: one per group, per layer
+    Evaluator<double> m_evaluator;  // derived from the above
 };
 
 }  // namespace wavestack
