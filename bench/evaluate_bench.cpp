@@ -39,30 +39,32 @@ Network randomNetwork(Index d, Index k, Index residualLayers)
                    OutputScaler(Vector::Zero(1), Vector::Ones(1)), std::move(layers));
 }
 
-/// The same network evaluated the plain way: scale, then for each row
-/// std::cos / std::sin and a running sum, layer by layer.
-double scalarReference(const Network& net, const double* x)
+/// The same network evaluated the plain way, in T (double or float): scale,
+/// then for each row std::cos / std::sin and a running sum, layer by layer.
+template <class T>
+T scalarReference(const Network& net, const T* x)
 {
     const Index d = net.inputCount();
-    std::vector<double> u(static_cast<std::size_t>(d));
+    std::vector<T> u(static_cast<std::size_t>(d));
     for (Index j = 0; j < d; ++j)
-        u[std::size_t(j)] = net.inputScaler().scale()[j] * x[j] + net.inputScaler().offset()[j];
-    double f0 = 0.0, z = 0.0;
+        u[std::size_t(j)] = T(net.inputScaler().scale()[j]) * x[j] + T(net.inputScaler().offset()[j]);
+    T f0 = 0, z = 0;
     for (std::size_t l = 0; l < net.layers().size(); ++l) {
         const Layer& layer = net.layers()[l];
-        const double s = f0 + z;  // running prediction
-        double add = 0.0;
+        const T s = f0 + z;  // running prediction
+        T add = 0;
         Index row = 0;
         for (const FeatureGroup& group : layer.groups) {
             const Index k = group.width();
             for (Index i = 0; i < k; ++i) {
-                double angle = 0.0;
+                T angle = 0;
                 if (group.source == FeatureSource::input)
                     for (Index j = 0; j < d; ++j)
-                        angle += group.parameters(i, j) * u[std::size_t(j)];
+                        angle += T(group.parameters(i, j)) * u[std::size_t(j)];
                 else
-                    angle = group.parameters(i, 0) * s;
-                add += layer.amplitudes(row + i, 0) * std::cos(angle) + layer.amplitudes(row + k + i, 0) * std::sin(angle);
+                    angle = T(group.parameters(i, 0)) * s;
+                add += T(layer.amplitudes(row + i, 0)) * std::cos(angle) +
+                       T(layer.amplitudes(row + k + i, 0)) * std::sin(angle);
             }
             row += 2 * k;
         }
@@ -102,42 +104,10 @@ void scalar(benchmark::State& state)
     double sink = 0.0;
     Index i = 0;
     for (auto _ : state) {
-        sink += scalarReference(net, &x(0, i));
+        sink += scalarReference<double>(net, &x(0, i));
         i = (i + 1) & 1023;
     }
     benchmark::DoNotOptimize(sink);
-}
-
-/// The float scalar reference: the same loop in single precision.
-float scalarReferenceFloat(const Network& net, const float* x)
-{
-    const Index d = net.inputCount();
-    std::vector<float> u(static_cast<std::size_t>(d));
-    for (Index j = 0; j < d; ++j)
-        u[std::size_t(j)] = float(net.inputScaler().scale()[j]) * x[j] + float(net.inputScaler().offset()[j]);
-    float f0 = 0.0f, z = 0.0f;
-    for (std::size_t l = 0; l < net.layers().size(); ++l) {
-        const Layer& layer = net.layers()[l];
-        const float s = f0 + z;
-        float add = 0.0f;
-        Index row = 0;
-        for (const FeatureGroup& group : layer.groups) {
-            const Index k = group.width();
-            for (Index i = 0; i < k; ++i) {
-                float angle = 0.0f;
-                if (group.source == FeatureSource::input)
-                    for (Index j = 0; j < d; ++j)
-                        angle += float(group.parameters(i, j)) * u[std::size_t(j)];
-                else
-                    angle = float(group.parameters(i, 0)) * s;
-                add += float(layer.amplitudes(row + i, 0)) * std::cos(angle) +
-                       float(layer.amplitudes(row + k + i, 0)) * std::sin(angle);
-            }
-            row += 2 * k;
-        }
-        (l == 0 ? f0 : z) += add;
-    }
-    return f0 + z;
 }
 
 void scalarFloat(benchmark::State& state)
@@ -147,7 +117,7 @@ void scalarFloat(benchmark::State& state)
     float sink = 0.0f;
     Index i = 0;
     for (auto _ : state) {
-        sink += scalarReferenceFloat(net, &x(0, i));
+        sink += scalarReference<float>(net, &x(0, i));
         i = (i + 1) & 1023;
     }
     benchmark::DoNotOptimize(sink);
