@@ -24,22 +24,10 @@ using namespace wavestack;
 
 namespace {
 
-struct Data {
-    Matrix x, y;
-};
-
-Data siFront(Index n, std::uint64_t seed)
+test_functions::Sample siFront(Index n, std::uint64_t seed)
 {
-    constexpr int d = 3;
     Random random(seed);
-    Data data{Matrix(n, d), Matrix(n, 1)};
-    double point[d];
-    for (Index i = 0; i < n; ++i) {
-        for (int j = 0; j < d; ++j)
-            point[j] = data.x(i, j) = random.normal();
-        data.y(i, 0) = test_functions::siFront(point, d, 0.01);
-    }
-    return data;
+    return test_functions::drawSiFront(n, 3, 0.01, random);
 }
 
 const char* mixName(FeatureMix mix)
@@ -53,7 +41,7 @@ int main(int argc, char** argv)
 {
     const std::string tablePath = argc > 1 ? argv[1] : "";
     const Index iterations = argc > 2 ? std::stol(argv[2]) : 40;
-    const Data train = siFront(10000, 1), test = siFront(20000, 2);
+    const test_functions::Sample train = siFront(10000, 1), test = siFront(20000, 2);
     const Index residualLayers = 4;
 
     std::ostringstream table;

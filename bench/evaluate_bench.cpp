@@ -6,6 +6,7 @@
 
 #include <cmath>
 #include <thread>
+#include <type_traits>
 #include <vector>
 
 #include <wavestack/wavestack.hpp>
@@ -83,11 +84,18 @@ Matrix points(Index n, Index d)
 }
 
 
+/// The network type that evaluates in T.
+template <class T>
+using NetworkIn = std::conditional_t<std::is_same_v<T, float>, FloatNetwork, Network>;
+template <class T>
+using MatrixIn = Eigen::Matrix<T, Eigen::Dynamic, Eigen::Dynamic>;
+
+template <class T>
 void single(benchmark::State& state)
 {
-    const Network net = randomNetwork(state.range(0), state.range(1), state.range(2));
-    const Matrix x = points(1024, net.inputCount()).transpose();  // column i is point i
-    double y, sink = 0.0;
+    const NetworkIn<T> net(randomNetwork(state.range(0), state.range(1), state.range(2)));
+    const MatrixIn<T> x = points(1024, net.inputCount()).transpose().template cast<T>();  // column i is point i
+    T y, sink = 0;
     Index i = 0;
     for (auto _ : state) {
         net.evaluate(&x(0, i), &y);
@@ -97,41 +105,15 @@ void single(benchmark::State& state)
     benchmark::DoNotOptimize(sink);
 }
 
+template <class T>
 void scalar(benchmark::State& state)
 {
     const Network net = randomNetwork(state.range(0), state.range(1), state.range(2));
-    const Matrix x = points(1024, net.inputCount()).transpose();
-    double sink = 0.0;
+    const MatrixIn<T> x = points(1024, net.inputCount()).transpose().template cast<T>();
+    T sink = 0;
     Index i = 0;
     for (auto _ : state) {
-        sink += scalarReference<double>(net, &x(0, i));
-        i = (i + 1) & 1023;
-    }
-    benchmark::DoNotOptimize(sink);
-}
-
-void scalarFloat(benchmark::State& state)
-{
-    const Network net = randomNetwork(state.range(0), state.range(1), state.range(2));
-    const Eigen::MatrixXf x = points(1024, net.inputCount()).transpose().cast<float>();
-    float sink = 0.0f;
-    Index i = 0;
-    for (auto _ : state) {
-        sink += scalarReference<float>(net, &x(0, i));
-        i = (i + 1) & 1023;
-    }
-    benchmark::DoNotOptimize(sink);
-}
-
-void singleFloat(benchmark::State& state)
-{
-    const FloatNetwork net(randomNetwork(state.range(0), state.range(1), state.range(2)));
-    const Eigen::MatrixXf x = points(1024, net.inputCount()).transpose().cast<float>();
-    float y, sink = 0.0f;
-    Index i = 0;
-    for (auto _ : state) {
-        net.evaluate(&x(0, i), &y);
-        sink += y;
+        sink += scalarReference<T>(net, &x(0, i));
         i = (i + 1) & 1023;
     }
     benchmark::DoNotOptimize(sink);
@@ -178,10 +160,10 @@ void batched(benchmark::State& state)
 }  // namespace
 
 // Time per iteration = ns per point for single and scalar; batched reports items/s.
-BENCHMARK(scalar)->Args({2, 64, 2})->Args({8, 256, 4})->Args({10, 512, 5});
-BENCHMARK(single)->Args({2, 64, 2})->Args({8, 256, 4})->Args({10, 512, 5});
-BENCHMARK(scalarFloat)->Args({2, 64, 2})->Args({8, 256, 4})->Args({10, 512, 5});
-BENCHMARK(singleFloat)->Args({2, 64, 2})->Args({8, 256, 4})->Args({10, 512, 5});
+BENCHMARK_TEMPLATE(scalar, double)->Args({2, 64, 2})->Args({8, 256, 4})->Args({10, 512, 5});
+BENCHMARK_TEMPLATE(single, double)->Args({2, 64, 2})->Args({8, 256, 4})->Args({10, 512, 5});
+BENCHMARK_TEMPLATE(scalar, float)->Args({2, 64, 2})->Args({8, 256, 4})->Args({10, 512, 5});
+BENCHMARK_TEMPLATE(single, float)->Args({2, 64, 2})->Args({8, 256, 4})->Args({10, 512, 5});
 BENCHMARK(batchedFloat)->Args({2, 64, 2})->Args({8, 256, 4})->Args({10, 512, 5})->UseRealTime();
 BENCHMARK(batched)
     ->Args({2, 64, 2, 1})->Args({8, 256, 4, 1})->Args({10, 512, 5, 1})

@@ -68,15 +68,9 @@ void gramTwoThreads(benchmark::State& state) { gramAssembly(state, ThreadReducti
 /// plus a held-out evaluation of 2 000 rows) on the Si-front in d = 3.
 void metropolisIteration(benchmark::State& state)
 {
-    const Index k = state.range(0), threads = state.range(1), n = 10000, d = 3;
+    const Index k = state.range(0), threads = state.range(1);
     Random random(2);
-    Matrix x(n, d), y(n, 1);
-    for (Index i = 0; i < n; ++i) {
-        double point[d];
-        for (Index j = 0; j < d; ++j)
-            point[j] = x(i, j) = random.normal();
-        y(i, 0) = test_functions::siFront(point, int(d), 0.01);
-    }
+    const auto [x, y] = test_functions::drawSiFront(10000, 3, 0.01, random);
     FitOptions options;
     options.width = k;
     options.sampler = SamplerKind::metropolis;

@@ -26,21 +26,10 @@ namespace {
 constexpr int dimension = 10;
 constexpr double sharpness = 0.01;
 
-struct Data {
-    Matrix x, y;
-};
-
-Data siFront(Index n, std::uint64_t seed)
+test_functions::Sample siFront(Index n, std::uint64_t seed)
 {
     Random random(seed);
-    Data data{Matrix(n, dimension), Matrix(n, 1)};
-    double point[dimension];
-    for (Index i = 0; i < n; ++i) {
-        for (int j = 0; j < dimension; ++j)
-            point[j] = data.x(i, j) = random.normal();
-        data.y(i, 0) = test_functions::siFront(point, dimension, sharpness);
-    }
-    return data;
+    return test_functions::drawSiFront(n, dimension, sharpness, random);
 }
 
 struct Variant {
@@ -95,7 +84,7 @@ int main(int argc, char** argv)
 {
     const std::string folder = argc > 1 ? argv[1] : ".";
     const Index epochs = argc > 2 ? std::stol(argv[2]) : 300;
-    const Data train = siFront(10000, 11), test = siFront(20000, 12);
+    const test_functions::Sample train = siFront(10000, 11), test = siFront(20000, 12);
     const std::vector<Variant> variants = {{"layer by layer only", Initialization::layerByLayer, 0},
                                            {"Glorot init + Adam", Initialization::glorot, epochs},
                                            {"layer by layer, then Adam", Initialization::layerByLayer, epochs}};

@@ -21,14 +21,8 @@ using testing::uniformSample;
 Data siFrontData(Index n, int d, double a, std::uint64_t seed)
 {
     Random random(seed);
-    Data data{Matrix(n, d), Matrix(n, 1)};
-    std::vector<double> x(static_cast<std::size_t>(d));
-    for (Index i = 0; i < n; ++i) {
-        for (int j = 0; j < d; ++j)
-            data.x(i, j) = x[static_cast<std::size_t>(j)] = random.normal();
-        data.y(i, 0) = test_functions::siFront(x.data(), d, a);
-    }
-    return data;
+    const auto sample = test_functions::drawSiFront(n, d, a, random);
+    return Data{sample.x, sample.y};
 }
 
 double heldOutRelativeRmse(const Network& net, const Data& test)

@@ -16,6 +16,8 @@
 #include <vector>
 
 #include "wavestack/core/error.hpp"
+#include "wavestack/core/random.hpp"
+#include "wavestack/core/types.hpp"
 
 namespace wavestack {
 namespace test_functions {
@@ -299,6 +301,39 @@ inline double colebrook(const double* x)
 inline Domain colebrookDomain()
 {
     return {{std::log10(4000.0), -6.0}, {8.0, std::log10(0.05)}};
+}
+
+/// Inputs (rows = points) and one output column.
+struct Sample {
+    Matrix x, y;
+};
+
+/// n points drawn from `domain` (uniform on its box, or N(0, I)), point by
+/// point and input by input from `random`, with y = f(point) for
+/// `double f(const double* point)`.
+template <class Function>
+Sample drawSample(const Domain& domain, Index n, Random& random, Function f)
+{
+    const int d = domain.dimension();
+    Sample sample{Matrix(n, d), Matrix(n, 1)};
+    std::vector<double> point(static_cast<std::size_t>(d));
+    for (Index i = 0; i < n; ++i) {
+        for (int j = 0; j < d; ++j) {
+            const auto k = static_cast<std::size_t>(j);
+            point[k] = domain.distribution == Distribution::standardNormal
+                           ? random.normal()
+                           : domain.lower[k] + (domain.upper[k] - domain.lower[k]) * random.uniform();
+            sample.x(i, j) = point[k];
+        }
+        sample.y(i, 0) = f(point.data());
+    }
+    return sample;
+}
+
+/// n points of the Si-front in d dimensions, x ~ N(0, I_d).
+inline Sample drawSiFront(Index n, int d, double a, Random& random)
+{
+    return drawSample(siFrontDomain(d), n, random, [&](const double* x) { return siFront(x, d, a); });
 }
 
 }  // namespace test_functions
