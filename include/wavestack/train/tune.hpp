@@ -97,15 +97,9 @@ inline void unflatten(const Vector& flat, std::vector<Layer>& layers)
     });
 }
 
-inline Vector flattenGradient(const NetworkGradient& gradient)
+/// Writes `gradient` into `flat` (sized like flatten's result).
+inline void flattenGradient(const NetworkGradient& gradient, Vector& flat)
 {
-    Index count = 0;
-    for (const auto& layer : gradient) {
-        for (const auto& p : layer.parameters)
-            count += p.size();
-        count += layer.amplitudes.size();
-    }
-    Vector flat(count);
     Index at = 0;
     for (const auto& layer : gradient) {
         for (const auto& p : layer.parameters) {
@@ -116,7 +110,6 @@ inline Vector flattenGradient(const NetworkGradient& gradient)
             Eigen::Map<const Vector>(layer.amplitudes.data(), layer.amplitudes.size());
         at += layer.amplitudes.size();
     }
-    return flat;
 }
 
 /// Mean squared error (data term) of `layers` on (u, y), internal units.
@@ -180,6 +173,8 @@ std::vector<Layer> tuneLayers(std::vector<Layer> layers, StateInput stateInput, 
     for (Index i = 0; i < n; ++i)
         order[std::size_t(i)] = i;
     NetworkGradient gradient;
+    GradientWorkspace workspace;
+    Vector flatGradient(flat.size()), rate(flat.size());
     Matrix batchU(batch, u.cols()), batchY(batch, y.cols());
     Index sinceBest = 0;
     double rateFactor = 0.0;
@@ -195,14 +190,16 @@ std::vector<Layer> tuneLayers(std::vector<Layer> layers, StateInput stateInput, 
                 batchU.row(i) = u.row(order[std::size_t(begin + i)]);
                 batchY.row(i) = y.row(order[std::size_t(begin + i)]);
             }
-            lossAndGradient(layers, stateInput, batchU, batchY, options.lambda, gradient, reduction);
+            lossAndGradient(layers, stateInput, batchU, batchY, options.lambda, gradient, reduction, workspace);
             const double step = double(adam.steps());
             const double warm = options.warmupSteps > 0 ? std::min(1.0, (step + 1.0) / double(options.warmupSteps))
                                                         : 1.0;
             const double decay = options.finalRateFraction + (1.0 - options.finalRateFraction) * 0.5 *
                                                                  (1.0 + std::cos(3.141592653589793 * step / totalSteps));
             rateFactor = warm * decay;
-            adam.step(flat, detail::flattenGradient(gradient), rateFactor * baseRate);
+            detail::flattenGradient(gradient, flatGradient);
+            rate = rateFactor * baseRate;
+            adam.step(flat, flatGradient, rate);
             detail::unflatten(flat, layers);
         }
         const double current = score(layers);
