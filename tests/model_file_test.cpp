@@ -45,6 +45,7 @@ Network trained(Index d, Index m, Index layers, FeatureMix mix)
     options.features = mix;
     options.validationFraction = 0.2;
     options.inputNames.clear();
+    options.tune.epochs = layers;  // the residual ones also carry a tuning curve
     return fit(data.x, data.y, options);
 }
 
@@ -147,6 +148,10 @@ TEST_CASE("save, load, evaluate is bit-identical for shallow and residual networ
             CHECK(back.stateInput() == net.stateInput());
             CHECK(back.record().settings == net.record().settings);
             CHECK(back.record().history.size() == net.record().history.size());
+            CHECK(back.record().tuningHistory.size() == net.record().tuningHistory.size());
+            CHECK(back.record().tuningHistory.size() == std::size_t(layers == 0 ? 0 : layers + 1));
+            CHECK(back.record().fitSeconds == net.record().fitSeconds);
+            CHECK(net.record().fitSeconds > 0.0);
             REQUIRE(back.record().heldOutMetrics.size() == std::size_t(m));
             CHECK(back.record().heldOutMetrics[0].rmse == net.record().heldOutMetrics[0].rmse);
             CHECK(back.domain().covariance() == net.domain().covariance());

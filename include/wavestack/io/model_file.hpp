@@ -33,6 +33,9 @@
 ///   "SETT" (optional) u32 length, UTF-8 text
 ///   "HIST" (optional) u32 count, then count x (u32 layer, f64 training
 ///          RMSE, f64 validation RMSE)
+///   "TUNH" (optional) u32 count, then count x (u32 epoch, f64 training
+///          RMSE, f64 validation RMSE)
+///   "TIME" (optional) f64 fit wall time in seconds
 ///
 /// Loading trusts nothing: every count is checked against the bytes that
 /// remain before anything is allocated, every real must be finite where the
@@ -313,6 +316,21 @@ inline std::vector<unsigned char> encodeModel(const Network& network)
         }
         detail::writeSection(payload, "HIST", s);
     }
+    if (!record.tuningHistory.empty()) {
+        ByteWriter s;
+        s.u32(std::uint32_t(record.tuningHistory.size()));
+        for (const auto& step : record.tuningHistory) {
+            s.u32(std::uint32_t(step.epoch));
+            s.f64(step.trainingRmse);
+            s.f64(step.validationRmse);
+        }
+        detail::writeSection(payload, "TUNH", s);
+    }
+    if (record.fitSeconds > 0.0) {
+        ByteWriter s;
+        s.f64(record.fitSeconds);
+        detail::writeSection(payload, "TIME", s);
+    }
 
     ByteWriter file;
     file.bytes(modelfile::magic, 8);
@@ -480,6 +498,18 @@ inline Network decodeModel(const unsigned char* data, std::size_t size)
                 step.validationRmse = s.f64("history validation rmse");
                 record.history.push_back(step);
             }
+        } else if (name == "TUNH") {
+            const std::uint32_t count = s.u32("tuning history length");
+            s.needItems(count, 20, "tuning history");
+            for (std::uint32_t i = 0; i < count; ++i) {
+                TuningStep step;
+                step.epoch = s.u32("tuning history epoch");
+                step.trainingRmse = s.f64("tuning history training rmse");
+                step.validationRmse = s.f64("tuning history validation rmse");
+                record.tuningHistory.push_back(step);
+            }
+        } else if (name == "TIME") {
+            record.fitSeconds = s.finite("fit time");
         }
         // Unknown tags: skipped (later minor additions stay readable).
     }

@@ -356,9 +356,12 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
     }
     if (options.initialization == Initialization::glorot)
         layers = detail::glorotLayers(options, u.cols(), m, stateWidth, random);
+    std::vector<TuningStep> tuningHistory;
     if (options.tune.epochs > 0) {
         TuneOptions tuning = options.tune;
         tuning.progress = [&](const TuneProgress& t) {
+            tuningHistory.push_back(TuningStep{t.epoch, std::sqrt(t.trainingMse),
+                                               t.validationMse >= 0.0 ? std::sqrt(t.validationMse) : -1.0});
             FitProgress progress{"tuning", Index(layers.size()) - 1, 0.0, SamplerProgress(), std::sqrt(t.trainingMse),
                                  t.validationMse >= 0.0 ? std::sqrt(t.validationMse) : -1.0, t};
             report(progress);
@@ -374,6 +377,7 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
     record.outputNames = options.outputNames;
     record.settings = detail::describeSettings(options, stateWidth, sampler);
     record.history = std::move(history);
+    record.tuningHistory = std::move(tuningHistory);
     if (held > 0) {
         // Back in the user's units: unscale the held-out rows.
         const Matrix heldInputs = (heldU.rowwise() - network.inputScaler().offset().transpose()) *
@@ -382,6 +386,7 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
                                    network.outputScaler().mean().transpose();
         record.heldOutMetrics = measureColumnErrors(network.evaluateBatch(heldInputs), heldOutputs);
     }
+    record.fitSeconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
     network.setRecord(std::move(record));
     return network;
 }
