@@ -55,7 +55,8 @@ struct FitProgress {
     /// was added; "dropped": a layer would have raised the training error
     /// (numerical trouble) and was left out; "stopped": the held-out error
     /// stopped improving and later layers were not trained; "tuning": once
-    /// per Adam epoch (see `tuning`).
+    /// per Adam epoch (see `tuning`); "search": a trial fit of
+    /// chooseFrequencyStddev (train/auto_settings.hpp), `layer` = trial index.
     std::string stage;
     Index layer = 0;               ///< 0 is the initial layer
     double seconds = 0.0;          ///< wall time since fit started
