@@ -28,5 +28,6 @@
 #include "wavestack/sampling/metropolis_sampler.hpp"
 #include "wavestack/solve/gram.hpp"
 #include "wavestack/solve/ridge_solver.hpp"
+#include "wavestack/train/auto_settings.hpp"
 #include "wavestack/train/fit.hpp"
 #include "wavestack/train/layer_problem.hpp"
