@@ -10,7 +10,7 @@ cmake_minimum_required(VERSION 3.16)
 # Debian packages each mode needs. Extend these lists when a new dependency
 # appears; nothing else in this script has to change.
 # ===========================================================================
-set(WAVESTACK_PACKAGES_COMMON g++ cmake make libeigen3-dev libxsimd-dev)
+set(WAVESTACK_PACKAGES_COMMON g++ cmake make libeigen3-dev libxsimd-dev libcli11-dev libfmt-dev)
 set(WAVESTACK_PACKAGES_DEMO)
 set(WAVESTACK_PACKAGES_TEST doctest-dev libbenchmark-dev libopenblas-serial-dev clang libclang-rt-14-dev python3)
 # ===========================================================================

@@ -4,6 +4,7 @@
 /// error (the rows FitOptions::validationFraction sets aside).
 
 #include <algorithm>
+#include <chrono>
 #include <cmath>
 #include <limits>
 #include <vector>
@@ -65,11 +66,13 @@ inline double chooseFrequencyStddev(const MatrixView& inputs, const MatrixView& 
     if (!trial.inputBox)  // scale as the full data will be scaled, not as the subset
         trial.inputBox = InputBox{inputs.colwise().minCoeff().transpose(), inputs.colwise().maxCoeff().transpose()};
 
+    const auto start = std::chrono::steady_clock::now();
     double best = grid.front(), bestError = std::numeric_limits<double>::infinity();
     for (std::size_t i = 0; i < grid.size(); ++i) {
         trial.frequencyStddev = grid[i];
         trial.progress = [&](const FitProgress&) {
-            return !options.progress || options.progress(FitProgress{"search", Index(i), 0.0, SamplerProgress(),
+            const double seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+            return !options.progress || options.progress(FitProgress{"search", Index(i), seconds, SamplerProgress(),
                                                                      -1.0, -1.0, TuneProgress()});
         };
         double error = 0.0;

@@ -176,7 +176,7 @@ template <class Sampler>
 std::string describeSettings(const FitOptions& options, Index stateWidth, const Sampler&)
 {
     std::ostringstream text;
-    text.precision(17);
+    text.precision(12);  // for people; 0.2 prints as 0.2, not 0.20000000000000001
     const char* mix = options.features == FeatureMix::fourier ? "fourier"
                       : options.features == FeatureMix::ridge ? "ridge"
                                                               : "both";
