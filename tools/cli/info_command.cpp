@@ -40,7 +40,7 @@ const char* kindName(FeatureKind kind) { return kind == FeatureKind::fourier ? "
 
 int runInfo(const InfoCommand& command)
 {
-    const Network network = loadModel(command.model);
+    const Network network = readModel(command.model);
     const ModelRecord& record = network.record();
     const std::vector<std::string> inputs = inputNames(network), outputs = outputNames(network);
     const TrainingDomain& domain = network.domain();

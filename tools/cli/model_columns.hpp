@@ -1,17 +1,31 @@
 #pragma once
 /// \file
-/// Names of a model's inputs and outputs, and finding them in a CSV file by
-/// header name (any column order; other columns are left alone).
+/// Reading a model file for a command; names of its inputs and outputs, and
+/// finding them in a CSV file by header name (any column order; other
+/// columns are left alone).
 
+#include <cerrno>
+#include <cstring>
+#include <fstream>
 #include <string>
 #include <vector>
 
 #include <fmt/format.h>
 
 #include "csv_table.hpp"
+#include "wavestack/io/model_file.hpp"
 #include "wavestack/model/network.hpp"
 
 namespace wavestack::cli {
+
+/// Loads a model file; a file that cannot be opened is the user's to fix
+/// (InputError), a damaged one a ModelFileError naming the byte offset.
+inline Network readModel(const std::string& path)
+{
+    if (!std::ifstream(path, std::ios::binary))
+        throw InputError(fmt::format("{}: cannot open the model file: {}", path, std::strerror(errno)));
+    return loadModel(path);
+}
 
 /// The stored names, or x0, x1, ... / y0, y1, ... when the model has none.
 inline std::vector<std::string> inputNames(const Network& network)

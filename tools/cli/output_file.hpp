@@ -29,7 +29,8 @@ public:
         m_temporary = m_path + ".tmp";
         m_file.open(m_temporary, std::ios::binary | std::ios::trunc);
         if (!m_file)
-            throw InputError(fmt::format("{}: cannot create the output file: {}", m_temporary, std::strerror(errno)));
+            throw InputError(fmt::format("{}: cannot create the output file (tried {}): {}", m_path, m_temporary,
+                                         std::strerror(errno)));
     }
     OutputFile(const OutputFile&) = delete;
     OutputFile& operator=(const OutputFile&) = delete;

@@ -41,7 +41,7 @@ std::string csvCell(const std::string& text)
 
 int runPredict(const PredictCommand& command)
 {
-    const Network network = loadModel(command.model);
+    const Network network = readModel(command.model);
     const CsvTable table = CsvTable::read(command.data);
     const std::vector<std::string> inputs = inputNames(network), outputs = outputNames(network);
     const Matrix x = table.numbers(findColumns(table, inputs, "model input"));

@@ -14,7 +14,7 @@ namespace wavestack::cli {
 
 int runReport(const ReportCommand& command)
 {
-    const Network network = loadModel(command.model);
+    const Network network = readModel(command.model);
     const CsvTable table = CsvTable::read(command.data);
     ReportData data;
     data.modelPath = command.model;

@@ -20,7 +20,7 @@ int runVerify(const VerifyCommand& command)
 {
     if (!command.maxRelRmse && !command.maxAbsError)
         throw InputError("verify: give a tolerance: --max-rel-rmse and/or --max-abs-error");
-    const Network network = loadModel(command.model);
+    const Network network = readModel(command.model);
     const CsvTable table = CsvTable::read(command.data);
     const std::vector<std::string> inputs = inputNames(network), outputs = outputNames(network);
     const Matrix x = table.numbers(findColumns(table, inputs, "model input"));
