@@ -28,6 +28,92 @@ inline std::vector<double> frequencyStddevGrid()
     return grid;
 }
 
+namespace detail {
+
+/// Shallow Gaussian-sampled trial fits on (a seeded subset of at most
+/// `maxRows` rows of) the data, each scored by its held-out relative RMSE
+/// averaged over outputs. Trials report through options.progress with stage
+/// "search" (layer = trial number); a false return cancels (throws Cancelled).
+class ShallowTrials {
+public:
+    ShallowTrials(const MatrixView& inputs, const MatrixView& outputs, const FitOptions& options, Index maxRows)
+        : m_options(options), m_start(std::chrono::steady_clock::now())
+    {
+        checkTrainingData(inputs, outputs, options);
+        m_x = inputs;
+        m_y = outputs;
+        if (inputs.rows() > maxRows) {
+            Random random(options.seed ^ 0x5eed5eedULL);
+            const std::vector<Index> order = shuffledRows(inputs.rows(), random);
+            m_x = selectRows(inputs, order, 0, maxRows);
+            m_y = selectRows(outputs, order, 0, maxRows);
+        }
+        m_trial = options;
+        m_trial.layers = 0;
+        m_trial.tune.epochs = 0;
+        m_trial.initialization = Initialization::layerByLayer;
+        m_trial.sampler = SamplerKind::gaussian;
+        if (m_trial.validationFraction <= 0.0)
+            m_trial.validationFraction = 0.2;
+        if (!m_trial.inputBox)  // scale as the full data will be scaled, not as the subset
+            m_trial.inputBox = InputBox{inputs.colwise().minCoeff().transpose(),
+                                        inputs.colwise().maxCoeff().transpose()};
+    }
+
+    /// The trial settings; change a field, then call score().
+    FitOptions& settings() { return m_trial; }
+
+    /// Held-out error of a shallow fit with the current settings; +inf when
+    /// the solver fails (such settings are then simply not chosen).
+    double score()
+    {
+        const Index number = m_count++;
+        m_trial.progress = [&](const FitProgress&) {
+            const double seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - m_start).count();
+            return !m_options.progress || m_options.progress(FitProgress{"search", number, seconds, SamplerProgress(),
+                                                                         -1.0, -1.0, TuneProgress()});
+        };
+        try {
+            const Network network = fit(m_x, m_y, m_trial);
+            double error = 0.0;
+            for (const auto& metric : network.record().heldOutMetrics)
+                error += metric.relativeRmse / double(network.record().heldOutMetrics.size());
+            return std::isfinite(error) ? error : std::numeric_limits<double>::infinity();
+        } catch (const NumericalError&) {
+            return std::numeric_limits<double>::infinity();
+        }
+    }
+
+    /// The value of `grid` with the lowest score after `set(value)`; leaves
+    /// the settings at the best value. Ties keep the earlier value.
+    template <class T, class Set>
+    T best(const std::vector<T>& grid, Set set, double* bestError = nullptr)
+    {
+        T chosen = grid.front();
+        double lowest = std::numeric_limits<double>::infinity();
+        for (const T& value : grid) {
+            set(m_trial, value);
+            const double error = score();
+            if (error < lowest) {
+                lowest = error;
+                chosen = value;
+            }
+        }
+        set(m_trial, chosen);
+        if (bestError)
+            *bestError = lowest;
+        return chosen;
+    }
+
+private:
+    FitOptions m_options, m_trial;
+    Matrix m_x, m_y;
+    std::chrono::steady_clock::time_point m_start;
+    Index m_count = 0;
+};
+
+}  // namespace detail
+
 /// The Gaussian frequency spread (FitOptions::frequencyStddev) with the
 /// lowest held-out relative RMSE, averaged over outputs, of shallow
 /// Gaussian-sampled fits with `options`' width, features and lambda, over
@@ -46,49 +132,8 @@ inline std::vector<double> frequencyStddevGrid()
 inline double chooseFrequencyStddev(const MatrixView& inputs, const MatrixView& outputs, const FitOptions& options,
                                     Index maxRows = 4000)
 {
-    detail::checkTrainingData(inputs, outputs, options);
-    const std::vector<double> grid = frequencyStddevGrid();
-
-    Matrix x = inputs, y = outputs;
-    if (inputs.rows() > maxRows) {
-        Random random(options.seed ^ 0x5eed5eedULL);
-        const std::vector<Index> order = detail::shuffledRows(inputs.rows(), random);
-        x = detail::selectRows(inputs, order, 0, maxRows);
-        y = detail::selectRows(outputs, order, 0, maxRows);
-    }
-    FitOptions trial = options;
-    trial.layers = 0;
-    trial.tune.epochs = 0;
-    trial.initialization = Initialization::layerByLayer;
-    trial.sampler = SamplerKind::gaussian;
-    if (trial.validationFraction <= 0.0)
-        trial.validationFraction = 0.2;
-    if (!trial.inputBox)  // scale as the full data will be scaled, not as the subset
-        trial.inputBox = InputBox{inputs.colwise().minCoeff().transpose(), inputs.colwise().maxCoeff().transpose()};
-
-    const auto start = std::chrono::steady_clock::now();
-    double best = grid.front(), bestError = std::numeric_limits<double>::infinity();
-    for (std::size_t i = 0; i < grid.size(); ++i) {
-        trial.frequencyStddev = grid[i];
-        trial.progress = [&](const FitProgress&) {
-            const double seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
-            return !options.progress || options.progress(FitProgress{"search", Index(i), seconds, SamplerProgress(),
-                                                                     -1.0, -1.0, TuneProgress()});
-        };
-        double error = 0.0;
-        try {
-            const Network network = fit(x, y, trial);
-            for (const auto& metric : network.record().heldOutMetrics)
-                error += metric.relativeRmse / double(network.record().heldOutMetrics.size());
-        } catch (const NumericalError&) {
-            continue;  // a spread the solver cannot handle is simply not chosen
-        }
-        if (error < bestError) {
-            bestError = error;
-            best = grid[i];
-        }
-    }
-    return best;
+    detail::ShallowTrials trials(inputs, outputs, options, maxRows);
+    return trials.best(frequencyStddevGrid(), [](FitOptions& o, double s) { o.frequencyStddev = s; });
 }
 
 }  // namespace wavestack

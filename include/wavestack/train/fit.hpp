@@ -109,6 +109,10 @@ struct FitOptions {
     Initialization initialization = Initialization::layerByLayer;
     /// Global fine-tuning by Adam after the layers are built (off by default).
     TuneOptions tune;
+    /// No residual layer is started, and tuning stops, after this time
+    /// (unset: no limit). The layers and epochs done so far are kept; the
+    /// result then depends on the machine's speed.
+    std::optional<std::chrono::steady_clock::time_point> deadline;
     /// Names stored with the model (empty: x0, x1, ... and y0, y1, ...).
     std::vector<std::string> inputNames, outputNames;
     /// Called during training; return false to stop (fit then throws Cancelled).
@@ -303,6 +307,10 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
     const Index stateWidth = options.stateWidth > 0 ? options.stateWidth : std::max<Index>(1, options.width / 4);
 
     for (Index l = 0; options.initialization == Initialization::layerByLayer && l <= options.layers; ++l) {
+        if (l > 0 && options.deadline && std::chrono::steady_clock::now() > *options.deadline) {
+            report(FitProgress{"stopped", l - 1, 0.0, SamplerProgress(), trainingError, -1.0, TuneProgress()});
+            break;
+        }
         const double lambda = l < Index(options.layerLambda.size()) ? options.layerLambda[std::size_t(l)]
                                                                      : options.lambda;
         // What the earlier layers left unexplained, and the state the layer reads.
@@ -360,6 +368,8 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
     std::vector<TuningStep> tuningHistory;
     if (options.tune.epochs > 0) {
         TuneOptions tuning = options.tune;
+        if (options.deadline && (!tuning.deadline || *options.deadline < *tuning.deadline))
+            tuning.deadline = options.deadline;
         tuning.progress = [&](const TuneProgress& t) {
             tuningHistory.push_back(TuningStep{t.epoch, std::sqrt(t.trainingMse),
                                                t.validationMse >= 0.0 ? std::sqrt(t.validationMse) : -1.0});

@@ -6,8 +6,10 @@
 /// learning rate, and the best parameters on held-out rows kept.
 
 #include <algorithm>
+#include <chrono>
 #include <cmath>
 #include <functional>
+#include <optional>
 #include <utility>
 #include <vector>
 
@@ -46,6 +48,9 @@ struct TuneOptions {
     double lambda = 0.0;
     /// Epochs without a lower held-out error before stopping.
     Index patience = 20;
+    /// Stop after the epoch that passes this time (unset: no limit), keeping
+    /// the best parameters; the result then depends on the machine's speed.
+    std::optional<std::chrono::steady_clock::time_point> deadline;
     AdamSettings adam;
     /// Called after each epoch; returning false stops tuning (the best
     /// parameters so far are kept; no exception).
@@ -215,6 +220,8 @@ std::vector<Layer> tuneLayers(std::vector<Layer> layers, StateInput stateInput, 
             break;
         }
         if (options.progress && !options.progress(progress))
+            break;
+        if (options.deadline && std::chrono::steady_clock::now() > *options.deadline)
             break;
     }
     return best;

@@ -1,0 +1,97 @@
+// autoFit: settings chosen on the held-out rows (train/auto_fit.hpp).
+
+#include <doctest/doctest.h>
+
+#include <wavestack/check/test_functions.hpp>
+#include <wavestack/train/auto_fit.hpp>
+
+using namespace wavestack;
+namespace tf = wavestack::test_functions;
+
+namespace {
+
+tf::Sample borehole(Index n, std::uint64_t seed)
+{
+    // Harper & Gupta 1983; ranges as in Surjanovic & Bingham's library
+    // (formula checked against numpy in tests/reference/test_functions_reference.py).
+    Random random(seed);
+    return tf::drawSample(tf::boreholeDomain(), n, random, tf::borehole);
+}
+
+double testError(const Network& network, const tf::Sample& test)
+{
+    return measureErrors(network.evaluateBatch(test.x).col(0), test.y.col(0)).relativeRmse;
+}
+
+}  // namespace
+
+TEST_CASE("autoFit beats fit's fixed defaults on new data, and records what it chose")
+{
+    const tf::Sample train = borehole(600, 1), test = borehole(4000, 2);
+    AutoFitOptions automatic;
+    automatic.tuneEpochs = 0;  // keeps the test quick; tuning is checked below
+    const Network chosen = autoFit(train.x, train.y, automatic);
+
+    FitOptions fixed;  // the library's fixed defaults, same held-out split and depth
+    fixed.validationFraction = automatic.validationFraction;
+    fixed.layers = autoMaxLayers;
+    const Network plain = fit(train.x, train.y, fixed);
+    // The fixed spread 3 suits oscillatory targets, not the smooth borehole
+    // function: the automatic choice is far better on 4 000 new points.
+    CHECK(testError(chosen, test) < 0.1 * testError(plain, test));
+    CHECK(testError(chosen, test) < 5e-3);
+
+    const std::string& settings = chosen.record().settings;
+    CHECK(settings.find("automatic: frequency stddev") != std::string::npos);
+    CHECK(settings.find("automatic: lambda") != std::string::npos);
+    CHECK(settings.find("automatic: input scales") != std::string::npos);
+    CHECK(chosen.record().heldOutMetrics.size() == 1);
+    CHECK(chosen.record().fitSeconds > 0.0);
+}
+
+TEST_CASE("settings given by the caller are kept, not chosen")
+{
+    const tf::Sample train = borehole(400, 3);
+    AutoFitOptions automatic;
+    automatic.width = 24;
+    automatic.layers = 1;
+    automatic.tuneEpochs = 0;
+    automatic.lambda = 1e-6;
+    automatic.frequencyStddev = 0.5;
+    automatic.features = FeatureMix::fourier;
+    const Network network = autoFit(train.x, train.y, automatic);
+    CHECK(network.layers().front().width() == 24);
+    CHECK(network.residualLayerCount() <= 1);
+    const std::string& settings = network.record().settings;
+    CHECK(settings.find("lambda = 1e-06") != std::string::npos);
+    CHECK(settings.find("frequency stddev = 0.5") != std::string::npos);
+    CHECK(settings.find("automatic:") == std::string::npos);
+}
+
+TEST_CASE("same seed, same model, for any thread count; a passed time limit stops after the first layer")
+{
+    const tf::Sample train = borehole(300, 4), test = borehole(200, 5);
+    AutoFitOptions automatic;
+    automatic.tuneEpochs = 3;
+    automatic.layers = 2;
+    const Matrix one = autoFit(train.x, train.y, automatic).evaluateBatch(test.x);
+    automatic.threads = 2;
+    const Matrix two = autoFit(train.x, train.y, automatic).evaluateBatch(test.x);
+    CHECK((one.array() == two.array()).all());
+
+    automatic.timeLimit = 1e-9;  // already over when the layers start
+    const Network late = autoFit(train.x, train.y, automatic);
+    CHECK(late.residualLayerCount() == 0);
+    CHECK(late.record().tuningHistory.size() <= 2);  // epoch 0 and at most one epoch
+}
+
+TEST_CASE("without held-out rows nothing is chosen and the fixed defaults apply")
+{
+    const tf::Sample train = borehole(200, 6);
+    AutoFitOptions automatic;
+    automatic.validationFraction = 0.0;
+    const Network network = autoFit(train.x, train.y, automatic);
+    CHECK(network.residualLayerCount() == 0);
+    CHECK(network.record().settings.find("automatic:") == std::string::npos);
+    CHECK(network.record().heldOutMetrics.empty());
+}
