@@ -18,7 +18,8 @@ struct FitCommand {
     std::string inputs;  // comma separated; empty: automatic
     std::optional<Index> layers, width, tuneEpochs;
     std::optional<double> holdout, lambda, frequencyStddev;
-    std::string sampler = "gaussian", features = "fourier";
+    std::optional<std::string> sampler, features;
+    double timeLimit = 0.0;  // seconds; 0: none
     std::uint64_t seed = 1;
     Index threads = 0;  // 0: all hardware threads
     bool quiet = false;

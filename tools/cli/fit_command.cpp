@@ -17,7 +17,7 @@
 #include "input_error.hpp"
 #include "progress_display.hpp"
 #include "wavestack/io/model_file.hpp"
-#include "wavestack/train/auto_settings.hpp"
+#include "wavestack/train/auto_fit.hpp"
 #include "wavestack/train/fit.hpp"
 
 namespace wavestack::cli {
@@ -120,33 +120,43 @@ void checkWritable(const std::string& path)
     std::remove(probe.c_str());
 }
 
-/// Settings the user did not give, from the data size (documented in README.md,
-/// "Automatic settings", with the measurements behind them).
-FitOptions chooseOptions(const FitCommand& command, Index rows, Index inputs)
+/// The user's flags; everything unset is chosen by autoFit on the held-out
+/// rows (train/auto_fit.hpp documents how).
+AutoFitOptions chooseOptions(const FitCommand& command, Index rows, Index inputs)
 {
-    FitOptions options;
+    AutoFitOptions options;
     options.validationFraction = command.holdout.value_or(rows >= 100 ? 0.2 : 0.0);
     const auto training = Index(std::floor(double(rows) * (1.0 - options.validationFraction)));
     if (training < 2 * inputs + 2)
         throw InputError(fmt::format("{} training rows are too few to fit {} inputs (at least {} are needed)",
                                      training, inputs, 2 * inputs + 2));
-    // About one Fourier pair (two features) per 8 training rows keeps each
-    // layer's least-squares problem well overdetermined.
-    options.width = command.width.value_or(std::clamp<Index>(training / 8, 8, 512));
-    options.layers = command.layers.value_or(options.validationFraction > 0.0 ? 4 : 0);
-    options.tune.epochs = command.tuneEpochs.value_or(0);
-    if (command.lambda)
-        options.lambda = *command.lambda;
-    if (command.frequencyStddev)
-        options.frequencyStddev = *command.frequencyStddev;
-    options.sampler = command.sampler == "metropolis" ? SamplerKind::metropolis : SamplerKind::gaussian;
-    options.features = command.features == "ridge"  ? FeatureMix::ridge
-                       : command.features == "both" ? FeatureMix::both
-                                                    : FeatureMix::fourier;
+    options.width = command.width;
+    options.layers = command.layers;
+    options.tuneEpochs = command.tuneEpochs;
+    options.lambda = command.lambda;
+    options.frequencyStddev = command.frequencyStddev;
+    if (command.sampler)
+        options.sampler = *command.sampler == "metropolis" ? SamplerKind::metropolis : SamplerKind::gaussian;
+    if (command.features)
+        options.features = *command.features == "ridge"  ? FeatureMix::ridge
+                           : *command.features == "both" ? FeatureMix::both
+                                                         : FeatureMix::fourier;
+    options.timeLimit = command.timeLimit;
     options.seed = command.seed;
     options.threads = command.threads > 0 ? command.threads
                                           : std::max<Index>(1, Index(std::thread::hardware_concurrency()));
     return options;
+}
+
+/// The value of "key = value" in the record's settings text.
+std::string setting(const ModelRecord& record, const std::string& key)
+{
+    const std::string& text = record.settings;
+    const auto at = text.find(key + " = ");
+    if (at == std::string::npos)
+        return "?";
+    const auto begin = at + key.size() + 3;
+    return text.substr(begin, text.find('\n', begin) - begin);
 }
 
 /// What Adam tuning did: epochs run and the epoch whose parameters were kept.
@@ -182,30 +192,27 @@ int runFit(const FitCommand& command)
     const Matrix inputs = table.numbers(columns.inputs);
     const Matrix outputs = table.numbers(columns.targets);
 
-    FitOptions options = chooseOptions(command, table.rows(), inputs.cols());
+    AutoFitOptions options = chooseOptions(command, table.rows(), inputs.cols());
     options.inputNames = namesOf(table, columns.inputs);
     options.outputNames = namesOf(table, columns.targets);
     const auto mode = command.quiet             ? ProgressDisplay::Mode::quiet
                       : isatty(fileno(stderr)) ? ProgressDisplay::Mode::live
                                                 : ProgressDisplay::Mode::lines;
-    const Index iterations = options.sampler == SamplerKind::metropolis ? options.metropolis.iterations : 1;
-    ProgressDisplay display(mode, options.layers, iterations, options.tune.epochs);
+    const bool metropolis = options.sampler == SamplerKind::metropolis;
+    const bool split = options.validationFraction > 0.0;
+    ProgressDisplay display(mode, options.layers.value_or(split ? autoMaxLayers : 0),
+                            metropolis ? MetropolisSettings().iterations : 1,
+                            options.tuneEpochs.value_or(split ? autoTuneEpochs : 0));
     options.progress = [&display](const FitProgress& p) { return display(p); };
 
     Network network;
-    const auto start = std::chrono::steady_clock::now();
     try {
-        if (!command.frequencyStddev)
-            options.frequencyStddev = chooseFrequencyStddev(inputs, outputs, options);
-        network = fit(inputs, outputs, options);
+        network = autoFit(inputs, outputs, options);
     } catch (const Cancelled&) {
         display.finish();
         throw Interrupted("wavestack fit: interrupted; no model was written");
     }
     display.finish();
-    ModelRecord record = network.record();  // the stored time includes the spread search
-    record.fitSeconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
-    network.setRecord(record);
     saveModel(network, command.model);
 
     if (command.quiet)
@@ -213,15 +220,16 @@ int runFit(const FitCommand& command)
     const auto held = Index(std::ceil(options.validationFraction * double(table.rows())));
     fmt::print("wrote {}\n", command.model);
     fmt::print("rows:    {} ({} training, {} held out)\n", table.rows(), table.rows() - held, held);
+    const ModelRecord& record = network.record();
     fmt::print("inputs:  {} ({})\n", inputs.cols(), fmt::join(options.inputNames, ", "));
     if (!columns.skipped.empty())
         fmt::print("skipped: {} (text in the first data row)\n", fmt::join(columns.skipped, ", "));
     fmt::print("outputs: {} ({})\n", outputs.cols(), fmt::join(options.outputNames, ", "));
     fmt::print("network: {} residual layer(s) after the initial one, width {} per layer, {} parameter rows in all, "
-               "{} sampler, {} features, frequency spread {:g}{}\n",
-               network.residualLayerCount(), options.width, network.width(), command.sampler, command.features,
-               options.frequencyStddev,
-               tuningSummary(network.record()));
+               "{} sampler, {} features, frequency spread {}, lambda {}{}\n",
+               network.residualLayerCount(), setting(record, "width"), network.width(), setting(record, "sampler"),
+               setting(record, "features"), setting(record, "frequency stddev"), setting(record, "lambda"),
+               tuningSummary(record));
     fmt::print("time:    {:.2f} s\n", record.fitSeconds);
     if (record.heldOutMetrics.empty()) {
         fmt::print("held-out: none (no held-out split); the model's error is unmeasured - run `wavestack verify` "

@@ -78,26 +78,32 @@ int run(int argc, char** argv)
     repeatable(fitApp, "--target", fit.targets, "Output column (repeat for several; default: the last column)");
     fitApp->add_option("--inputs", fit.inputs, "Input columns, comma separated (default: every other column whose "
                                                "first data cell looks numeric)");
-    fitApp->add_option("--layers", fit.layers, "Residual layers after the initial one, at most (default 4, "
+    fitApp->add_option("--layers", fit.layers, "Residual layers after the initial one, at most (default 8, "
                                                "early-stopped on the held-out rows)")
         ->check(wholeNumber(0));
-    fitApp->add_option("--width", fit.width, "Parameter rows per layer (default: training rows / 8, in [8, 512])")
+    fitApp->add_option("--width", fit.width, "Parameter rows per layer (default: training rows / 4, in [16, 1024])")
         ->check(wholeNumber(1));
     fitApp->add_option("--sampler", fit.sampler, "Frequency sampler (default gaussian)")
         ->check(CLI::IsMember({"metropolis", "gaussian"}));
-    fitApp->add_option("--features", fit.features, "Feature maps (default fourier)")
+    fitApp->add_option("--features", fit.features, "Feature maps (default: fourier or both, chosen on the held-out "
+                                                   "rows)")
         ->check(CLI::IsMember({"fourier", "ridge", "both"}));
-    fitApp->add_option("--tune", fit.tuneEpochs, "Epochs of global Adam fine-tuning (default 0: off)")
+    fitApp->add_option("--tune", fit.tuneEpochs, "Most epochs of global Adam fine-tuning, kept only as far as it "
+                                                 "lowers the held-out error (default 100; 0: off)")
         ->check(wholeNumber(0));
     fitApp->add_option("--holdout", fit.holdout, "Fraction of rows held out for early stopping and the stored "
                                                  "metrics (default 0.2; 0 with fewer than 100 rows)")
         ->check(realNumber(0.0, 0.9));
-    fitApp->add_option("--lambda", fit.lambda, "Ridge (Tikhonov) weight, outputs standardised (default 1e-8)")
+    fitApp->add_option("--lambda", fit.lambda, "Ridge (Tikhonov) weight, outputs standardised (default: chosen on "
+                                               "the held-out rows)")
         ->check(realNumber(0.0, 1e6));
     fitApp->add_option("--frequency-stddev", fit.frequencyStddev,
                        "Spread of the initial frequencies, inputs scaled to [-1, 1] (default: chosen on the "
                        "held-out rows)")
         ->check(realNumber(1e-6, 1e6));
+    fitApp->add_option("--time-limit", fit.timeLimit, "Seconds; past it no layer is started and tuning stops, "
+                                                      "keeping what was done (default 0: no limit)")
+        ->check(realNumber(0.0, huge));
     fitApp->add_option("--seed", fit.seed, "Seed of every random choice (default 1)")->check(wholeNumber(0));
     fitApp->add_option("--threads", fit.threads, "Worker threads (default: all; the model does not depend on it)")
         ->check(wholeNumber(0));

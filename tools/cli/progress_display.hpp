@@ -14,7 +14,6 @@
 #include <fmt/format.h>
 
 #include "interrupt.hpp"
-#include "wavestack/train/auto_settings.hpp"
 #include "wavestack/train/fit.hpp"
 
 namespace wavestack::cli {
@@ -76,8 +75,7 @@ private:
     {
         std::string text;
         if (p.stage == "search")
-            text = fmt::format("fit: choosing the frequency spread, trial {}/{}", p.layer + 1,
-                               frequencyStddevGrid().size());
+            text = fmt::format("fit: choosing settings on the held-out rows, trial {}", p.layer + 1);
         else if (p.stage == "tuning")
             text = fmt::format("fit: tuning epoch {}/{}", p.tuning.epoch, m_epochs);
         else if (p.stage == "sampling")
@@ -98,13 +96,13 @@ private:
         text += fmt::format("  {} elapsed", clockText(p.seconds));
         const double done = doneFraction(p);
         if (done > 0.02 && done < 1.0)
-            text += fmt::format("  ~{} left", clockText(p.seconds * (1.0 - done) / done));
+            text += fmt::format("  at most ~{} left", clockText(p.seconds * (1.0 - done) / done));
         return text;
     }
 
     /// Share of the planned work done: sampler iterations of every layer,
-    /// then tuning epochs, counted as equal units. Early stopping makes the
-    /// estimate pessimistic, never optimistic.
+    /// then tuning epochs, counted as equal units. Early stopping usually
+    /// ends the work sooner, hence "at most".
     double doneFraction(const FitProgress& p) const
     {
         const double perLayer = double(m_iterations + 1);
