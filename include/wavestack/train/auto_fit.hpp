@@ -7,14 +7,19 @@
 ///   1. width per layer from the number of training rows (autoWidth);
 ///   2. the frequency spread, over frequencyStddevGrid() (shallow trials);
 ///   3. lambda, over autoLambdaGrid() (shallow trials);
-///   4. the feature mix: Fourier alone or Fourier + ridge (shallow trials);
-///   5. the number of residual layers: up to autoMaxLayers, early-stopped
+///   4. a spread per input (anisotropy, like a kernel with one length scale
+///      per input): two passes over the inputs, halving or doubling one
+///      input's spread while that lowers the held-out error by 3 %, then
+///      the common spread once more (shallow trials);
+///   5. the feature mix: Fourier alone or Fourier + ridge (shallow trials);
+///   6. the number of residual layers: up to autoMaxLayers, early-stopped
 ///      when the held-out error stops falling (the best prefix is kept);
-///   6. Adam tuning: up to autoTuneEpochs epochs, kept only as far as it
-///      lowers the held-out error (the tuner keeps its best epoch, which is
-///      epoch 0, the untuned network, when tuning does not pay).
+///   7. Adam tuning: up to autoTuneEpochsFor() epochs, kept only as far as
+///      it lowers the held-out error (the tuner keeps its best epoch, which
+///      is epoch 0, the untuned network, when tuning does not pay).
 ///
-/// Trials use at most 4 000 rows. The evidence for each rule is in
+/// Shallow trials use at most 4 000 rows and width autoTrialWidth, so steps
+/// 2-5 cost about 30 + 4 d small solves. The evidence for each rule is in
 /// DEVELOPERS.md ("Defaults") and bench/results/suite.md.
 
 #include <algorithm>
@@ -50,7 +55,7 @@ struct AutoFitOptions {
 };
 
 /// Parameter rows per layer for `trainingRows` rows: see DEVELOPERS.md.
-inline Index autoWidth(Index trainingRows) { return std::clamp<Index>(trainingRows / 4, 16, 1024); }
+inline Index autoWidth(Index trainingRows) { return std::clamp<Index>(trainingRows / 4, 16, 512); }
 
 /// Relative Tikhonov weights tried (outputs standardised).
 inline std::vector<double> autoLambdaGrid() { return {1e-12, 1e-10, 1e-8, 1e-6, 1e-4}; }
@@ -73,6 +78,16 @@ inline InputBox stretchedBox(const InputBox& box, const Vector& scales)
 
 }  // namespace detail
 constexpr Index autoTuneEpochs = 100;
+
+/// Tuning epochs for a network of `width` parameter rows in all on
+/// `trainingRows` rows: autoTuneEpochs, fewer for large problems, so that an
+/// epoch budget of about 2e9 row-rows (a few seconds per 1e9 on one core) is
+/// kept without a clock.
+inline Index autoTuneEpochsFor(Index trainingRows, Index width)
+{
+    const double perEpoch = double(std::max<Index>(1, trainingRows)) * double(std::max<Index>(1, width));
+    return std::clamp<Index>(Index(2e9 / perEpoch), 5, autoTuneEpochs);
+}
 
 inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, const AutoFitOptions& automatic = {})
 {
@@ -143,7 +158,9 @@ inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, cons
         }
     }
     options.layers = automatic.layers.value_or(options.validationFraction > 0.0 ? autoMaxLayers : 0);
-    options.tune.epochs = automatic.tuneEpochs.value_or(options.validationFraction > 0.0 ? autoTuneEpochs : 0);
+    const Index expectedWidth = (options.layers + 1) * options.width + options.layers * std::max<Index>(1, options.width / 4);
+    options.tune.epochs = automatic.tuneEpochs.value_or(
+        options.validationFraction > 0.0 ? autoTuneEpochsFor(training, expectedWidth) : 0);
     options.tune.patience = 10;
     if (automatic.timeLimit > 0.0)
         options.deadline = start + std::chrono::duration_cast<std::chrono::steady_clock::duration>(
