@@ -230,6 +230,37 @@ inline void writeSection(ByteWriter& payload, const char tag[4], ByteWriter& bod
     payload.bytes(body.buffer().data(), body.buffer().size());
 }
 
+/// A training curve (HIST, TUNH): u32 count, then count x (u32 step, f64
+/// training RMSE, f64 validation RMSE); nothing is written for an empty curve.
+template <class Step>
+void writeCurve(ByteWriter& payload, const char tag[4], const std::vector<Step>& curve, Index Step::*step)
+{
+    if (curve.empty())
+        return;
+    ByteWriter s;
+    s.u32(std::uint32_t(curve.size()));
+    for (const Step& point : curve) {
+        s.u32(std::uint32_t(point.*step));
+        s.f64(point.trainingRmse);
+        s.f64(point.validationRmse);
+    }
+    writeSection(payload, tag, s);
+}
+
+template <class Step>
+std::vector<Step> readCurve(ByteReader& s, Index Step::*step, const std::string& what)
+{
+    const std::uint32_t count = s.u32((what + " length").c_str());
+    s.needItems(count, 20, what.c_str());
+    std::vector<Step> curve(count);
+    for (Step& point : curve) {
+        point.*step = s.u32((what + " step").c_str());
+        point.trainingRmse = s.f64((what + " training rmse").c_str());
+        point.validationRmse = s.f64((what + " validation rmse").c_str());
+    }
+    return curve;
+}
+
 /// Upper bounds that keep a corrupt file from asking for absurd work.
 constexpr std::uint32_t maxDimension = 1U << 20;
 constexpr std::uint32_t maxLayers = 1U << 16;
@@ -306,26 +337,8 @@ inline std::vector<unsigned char> encodeModel(const Network& network)
         s.text(record.settings);
         detail::writeSection(payload, "SETT", s);
     }
-    if (!record.history.empty()) {
-        ByteWriter s;
-        s.u32(std::uint32_t(record.history.size()));
-        for (const auto& step : record.history) {
-            s.u32(std::uint32_t(step.layer));
-            s.f64(step.trainingRmse);
-            s.f64(step.validationRmse);
-        }
-        detail::writeSection(payload, "HIST", s);
-    }
-    if (!record.tuningHistory.empty()) {
-        ByteWriter s;
-        s.u32(std::uint32_t(record.tuningHistory.size()));
-        for (const auto& step : record.tuningHistory) {
-            s.u32(std::uint32_t(step.epoch));
-            s.f64(step.trainingRmse);
-            s.f64(step.validationRmse);
-        }
-        detail::writeSection(payload, "TUNH", s);
-    }
+    detail::writeCurve(payload, "HIST", record.history, &TrainingStep::layer);
+    detail::writeCurve(payload, "TUNH", record.tuningHistory, &TuningStep::epoch);
     if (record.fitSeconds > 0.0) {
         ByteWriter s;
         s.f64(record.fitSeconds);
@@ -489,25 +502,9 @@ inline Network decodeModel(const unsigned char* data, std::size_t size)
         } else if (name == "SETT") {
             record.settings = s.text("settings");
         } else if (name == "HIST") {
-            const std::uint32_t count = s.u32("history length");
-            s.needItems(count, 20, "history");
-            for (std::uint32_t i = 0; i < count; ++i) {
-                TrainingStep step;
-                step.layer = s.u32("history layer");
-                step.trainingRmse = s.f64("history training rmse");
-                step.validationRmse = s.f64("history validation rmse");
-                record.history.push_back(step);
-            }
+            record.history = detail::readCurve(s, &TrainingStep::layer, "history");
         } else if (name == "TUNH") {
-            const std::uint32_t count = s.u32("tuning history length");
-            s.needItems(count, 20, "tuning history");
-            for (std::uint32_t i = 0; i < count; ++i) {
-                TuningStep step;
-                step.epoch = s.u32("tuning history epoch");
-                step.trainingRmse = s.f64("tuning history training rmse");
-                step.validationRmse = s.f64("tuning history validation rmse");
-                record.tuningHistory.push_back(step);
-            }
+            record.tuningHistory = detail::readCurve(s, &TuningStep::epoch, "tuning history");
         } else if (name == "TIME") {
             record.fitSeconds = s.finite("fit time");
         }
