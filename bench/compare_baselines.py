@@ -39,7 +39,10 @@ before numpy is imported) and the BLAS numpy is linked against (the header lists
 thread pools actually found). On a busy machine OpenMP's spin-waiting threads can
 slow hgb down 10-40x (one borehole N = 1000 fit: 16 s at load 4 on 2 CPUs, 1.2 s with
 OMP_WAIT_POLICY=passive, 0.4 s on one thread): compare timings from an idle machine.
---quick uses small grids: a smoke test, not a result.
+--quick uses small grids: a smoke test, not a result. A full run took 1-1.5 min per
+case at N = 1000 (gp 20-45 s of it, d = 3..10) and 6-13 min at N = 10 000 (rff+ridge
+about 200 s; hgb 1-8 min depending on load) on 2 threads of an AMD EPYC: plan on
+1-2 hours for all nine cases.
 
 Needs only Debian 12 packages: python3-sklearn (1.2), python3-numpy, python3-scipy.
 """
