@@ -110,26 +110,27 @@ inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, cons
     if (automatic.frequencyStddev)
         options.frequencyStddev = *automatic.frequencyStddev;
 
-    // Steps 2-4 on shallow trials; without held-out rows there is nothing to choose on.
+    // Steps 2-5 on shallow trials; without held-out rows there is nothing to choose on.
     std::ostringstream chosen;
     if (options.validationFraction > 0.0) {
         FitOptions trialOptions = options;
         trialOptions.width = std::min<Index>(options.width, autoTrialWidth);
         detail::ShallowTrials trials(inputs, outputs, trialOptions, 4000);
+        double current = -1.0;  // held-out error of the current trial settings; < 0: not yet scored
         if (!automatic.frequencyStddev) {
-            options.frequencyStddev =
-                trials.best(frequencyStddevGrid(), [](FitOptions& o, double s) { o.frequencyStddev = s; });
+            options.frequencyStddev = trials.best(
+                frequencyStddevGrid(), [](FitOptions& o, double s) { o.frequencyStddev = s; }, &current);
             chosen << "automatic: frequency stddev\n";
         }
         if (!automatic.lambda) {
-            options.lambda = trials.best(autoLambdaGrid(), [](FitOptions& o, double l) { o.lambda = l; });
+            options.lambda =
+                trials.best(autoLambdaGrid(), [](FitOptions& o, double l) { o.lambda = l; }, &current);
             chosen << "automatic: lambda\n";
         }
         if (!automatic.frequencyStddev) {
             // Per-input spreads (anisotropy), by stretching each input's box.
             const InputBox dataBox = *trials.settings().inputBox;
             Vector scales = Vector::Ones(inputs.cols());
-            double current = trials.score();
             for (int pass = 0; pass < 2; ++pass)
                 for (Index j = 0; j < inputs.cols(); ++j)
                     for (double factor : {0.5, 2.0}) {
@@ -158,7 +159,8 @@ inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, cons
         }
     }
     options.layers = automatic.layers.value_or(options.validationFraction > 0.0 ? autoMaxLayers : 0);
-    const Index expectedWidth = (options.layers + 1) * options.width + options.layers * std::max<Index>(1, options.width / 4);
+    const Index stateWidth = std::max<Index>(1, options.width / 4);
+    const Index expectedWidth = (options.layers + 1) * options.width + options.layers * stateWidth;
     options.tune.epochs = automatic.tuneEpochs.value_or(
         options.validationFraction > 0.0 ? autoTuneEpochsFor(training, expectedWidth) : 0);
     options.tune.patience = 10;
