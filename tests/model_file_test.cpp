@@ -13,15 +13,15 @@
 
 #include <wavestack/wavestack.hpp>
 
+#include "test_support.hpp"
+
 using namespace wavestack;
 
 namespace {
 
 using Bytes = std::vector<unsigned char>;
 
-struct Data {
-    Matrix x, y;
-};
+using Data = testing::Sample;
 
 Data sample(Index n, Index d, Index m, std::uint64_t seed)
 {
