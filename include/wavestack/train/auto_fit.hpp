@@ -8,9 +8,10 @@
 ///   2. the frequency spread, over frequencyStddevGrid() (shallow trials);
 ///   3. lambda, over autoLambdaGrid() (shallow trials);
 ///   4. a spread per input (anisotropy, like a kernel with one length scale
-///      per input): two passes over the inputs, halving or doubling one
-///      input's spread while that lowers the held-out error by 3 %, then
-///      the common spread once more (shallow trials);
+///      per input): passes over the inputs, multiplying one input's spread
+///      by 1/4, 1/2, 2 or 4 where that lowers the held-out error by 3 %,
+///      until a pass changes nothing (at most autoScalePasses), then the
+///      common spread once more (shallow trials);
 ///   5. the feature mix: Fourier alone or Fourier + ridge (shallow trials);
 ///   6. the number of residual layers: up to autoMaxLayers, early-stopped
 ///      when the held-out error stops falling (the best prefix is kept);
@@ -19,7 +20,7 @@
 ///      is epoch 0, the untuned network, when tuning does not pay).
 ///
 /// Shallow trials use at most 4 000 rows and width autoTrialWidth, so steps
-/// 2-5 cost about 30 + 4 d small solves. The evidence for each rule is in
+/// 2-5 cost about 30 + 4 d per pass small solves. The evidence for each rule is in
 /// DEVELOPERS.md ("Defaults") and bench/results/suite.md.
 
 #include <algorithm>
@@ -61,6 +62,8 @@ inline Index autoWidth(Index trainingRows) { return std::clamp<Index>(trainingRo
 inline std::vector<double> autoLambdaGrid() { return {1e-12, 1e-10, 1e-8, 1e-6, 1e-4}; }
 
 constexpr Index autoMaxLayers = 8;
+/// Passes of the per-input spread search; each stops early when it changes nothing.
+constexpr Index autoScalePasses = 8;
 /// Width of the shallow trials that choose spread, scales, lambda and features.
 constexpr Index autoTrialWidth = 128;
 
@@ -131,9 +134,10 @@ inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, cons
             // Per-input spreads (anisotropy), by stretching each input's box.
             const InputBox dataBox = *trials.settings().inputBox;
             Vector scales = Vector::Ones(inputs.cols());
-            for (int pass = 0; pass < 2; ++pass)
+            for (Index pass = 0; pass < autoScalePasses; ++pass) {
+                bool changed = false;
                 for (Index j = 0; j < inputs.cols(); ++j)
-                    for (double factor : {0.5, 2.0}) {
+                    for (double factor : {0.25, 0.5, 2.0, 4.0}) {
                         Vector candidate = scales;
                         candidate[j] *= factor;
                         trials.settings().inputBox = detail::stretchedBox(dataBox, candidate);
@@ -141,8 +145,12 @@ inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, cons
                         if (error < 0.97 * current) {
                             current = error;
                             scales = candidate;
+                            changed = true;
                         }
                     }
+                if (!changed)
+                    break;
+            }
             trials.settings().inputBox = detail::stretchedBox(dataBox, scales);
             options.frequencyStddev =
                 trials.best(frequencyStddevGrid(), [](FitOptions& o, double s) { o.frequencyStddev = s; });
