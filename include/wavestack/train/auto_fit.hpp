@@ -65,7 +65,7 @@ constexpr Index autoMaxLayers = 8;
 /// Passes of the per-input spread search; each stops early when it changes nothing.
 constexpr Index autoScalePasses = 8;
 /// Width of the shallow trials that choose spread, scales, lambda and features.
-constexpr Index autoTrialWidth = 128;
+constexpr Index autoTrialWidth = 256;
 
 namespace detail {
 
