@@ -20,8 +20,8 @@
 ///      is epoch 0, the untuned network, when tuning does not pay).
 ///
 /// Shallow trials use at most 4 000 rows and width autoTrialWidth, so steps
-/// 2-5 cost about 30 + 4 d per pass small solves. The evidence for each rule is in
-/// DEVELOPERS.md ("Defaults") and bench/results/suite.md.
+/// 2-5 cost about 30 small solves plus 4 d per pass of step 4. The evidence
+/// for each rule is in DEVELOPERS.md ("Defaults") and bench/results/suite.md.
 
 #include <algorithm>
 #include <chrono>
