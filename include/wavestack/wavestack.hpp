@@ -27,6 +27,7 @@
 #include "wavestack/sampling/gaussian_sampler.hpp"
 #include "wavestack/sampling/metropolis_sampler.hpp"
 #include "wavestack/solve/gram.hpp"
+#include "wavestack/solve/ridge_loo.hpp"
 #include "wavestack/solve/ridge_solver.hpp"
 #include "wavestack/train/auto_settings.hpp"
 #include "wavestack/train/fit.hpp"
