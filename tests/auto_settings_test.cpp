@@ -6,7 +6,9 @@
 #include <cmath>
 #include <limits>
 
+#include <wavestack/check/metrics.hpp>
 #include <wavestack/check/test_functions.hpp>
+#include <wavestack/solve/ridge_loo.hpp>
 #include <wavestack/train/auto_settings.hpp>
 
 using namespace wavestack;
@@ -22,13 +24,37 @@ FitOptions searchOptions()
     return options;
 }
 
-/// The held-out relative RMSE of a shallow Gaussian fit at `stddev`, computed
-/// here the plain way, one fit per value, as the chooser's reference.
-double heldOutError(const test_functions::Sample& data, FitOptions options, double stddev)
+/// Relative RMSE on `test` of a shallow Gaussian fit at `stddev` on all of `data`.
+double testError(const test_functions::Sample& data, const test_functions::Sample& test, FitOptions options,
+                 double stddev)
 {
     options.frequencyStddev = stddev;
+    options.validationFraction = 0.0;
     options.inputBox = InputBox{data.x.colwise().minCoeff().transpose(), data.x.colwise().maxCoeff().transpose()};
-    return fit(data.x, data.y, options).record().heldOutMetrics.front().relativeRmse;
+    const Network network = fit(data.x, data.y, options);
+    return measureColumnErrors(network.evaluateBatch(test.x), test.y).front().relativeRmse;
+}
+
+/// The leave-one-out error of that fit, from the library's parts: the same
+/// draw as the chooser's (seed, GaussianSampler, layer features) scored by
+/// RidgeLeaveOneOut (itself checked against refitting in ridge_loo_test.cpp).
+double leaveOneOutError(const test_functions::Sample& data, const FitOptions& options, double stddev)
+{
+    const InputBox box{data.x.colwise().minCoeff().transpose(), data.x.colwise().maxCoeff().transpose()};
+    const Matrix u = InputScaler(box).apply(data.x);
+    Random random(options.seed);
+    struct Shape {
+        Index inputs;
+        Index parameterSize(const GroupShape& s) const { return wavestack::parameterSize(s.kind, inputs); }
+    };
+    const auto groups =
+        GaussianSampler(stddev).sample(Shape{u.cols()}, {{FeatureKind::fourier, options.width}}, random);
+    Matrix phi(u.rows(), 2 * options.width);
+    layerFeatures(groups, u, Matrix(u.rows(), 0), phi);
+    return RidgeLeaveOneOut<>()
+        .errors(phi, OutputScaler::fromData(data.y).apply(data.y), {options.lambda})
+        .front()
+        .relativeRmse;
 }
 
 }  // namespace
@@ -43,7 +69,7 @@ TEST_CASE("the spread grid spans factor-2 steps from 1/32 to 16 and holds the de
     CHECK(std::is_sorted(grid.begin(), grid.end()));
 }
 
-TEST_CASE("the chosen spread is the grid's best held-out value, on a smooth and on an oscillatory target")
+TEST_CASE("the chosen spread has the grid's lowest leave-one-out error, and predicts new points well")
 {
     // Borehole (Harper & Gupta 1983; ranges from Surjanovic & Bingham's library)
     // is smooth; Ishigami (Ishigami & Homma 1990) oscillates with sin(x1) over
@@ -59,13 +85,21 @@ TEST_CASE("the chosen spread is the grid's best held-out value, on a smooth and 
     CHECK(wavy >= 8.0 * smooth);
 
     for (const auto* data : {&borehole, &ishigami}) {
-        const double chosen = data == &borehole ? smooth : wavy;
-        double best = std::numeric_limits<double>::infinity();
-        for (double s : frequencyStddevGrid())
-            best = std::min(best, heldOutError(*data, options, s));
-        CHECK(heldOutError(*data, options, chosen) == doctest::Approx(best).epsilon(1e-12));
-        // Never worse than the library's fixed default spread (on the grid by design).
-        CHECK(heldOutError(*data, options, chosen) <= heldOutError(*data, options, GaussianSampler::defaultStddev));
+        const bool smoothCase = data == &borehole;
+        const double chosen = smoothCase ? smooth : wavy;
+        const auto test =
+            test_functions::drawSample(smoothCase ? test_functions::boreholeDomain() : test_functions::ishigamiDomain(),
+                                       4000, random, smoothCase ? test_functions::borehole : test_functions::ishigami);
+        double lowest = std::numeric_limits<double>::infinity(), bestTest = lowest;
+        for (double s : frequencyStddevGrid()) {
+            lowest = std::min(lowest, leaveOneOutError(*data, options, s));
+            bestTest = std::min(bestTest, testError(*data, test, options, s));
+        }
+        CHECK(leaveOneOutError(*data, options, chosen) == lowest);
+        // On new points: close to the grid's best spread, never far worse than the default.
+        const double chosenTest = testError(*data, test, options, chosen);
+        CHECK(chosenTest <= 1.25 * bestTest);
+        CHECK(chosenTest <= 1.25 * testError(*data, test, options, GaussianSampler::defaultStddev));
     }
 }
 

@@ -120,8 +120,8 @@ void checkWritable(const std::string& path)
     std::remove(probe.c_str());
 }
 
-/// The user's flags; everything unset is chosen by autoFit on the held-out
-/// rows (train/auto_fit.hpp documents how).
+/// The user's flags; everything unset is chosen by autoFit from the data
+/// (train/auto_fit.hpp documents how).
 AutoFitOptions chooseOptions(const FitCommand& command, Index rows, Index inputs)
 {
     AutoFitOptions options;

@@ -85,8 +85,8 @@ int run(int argc, char** argv)
         ->check(wholeNumber(1));
     fitApp->add_option("--sampler", fit.sampler, "Frequency sampler (default gaussian)")
         ->check(CLI::IsMember({"metropolis", "gaussian"}));
-    fitApp->add_option("--features", fit.features, "Feature maps (default: fourier or both, chosen on the held-out "
-                                                   "rows)")
+    fitApp->add_option("--features", fit.features, "Feature maps (default: fourier or both, chosen by "
+                                                   "leave-one-out error)")
         ->check(CLI::IsMember({"fourier", "ridge", "both"}));
     fitApp->add_option("--tune", fit.tuneEpochs, "Most epochs of global Adam fine-tuning, kept only as far as it "
                                                  "lowers the held-out error (default 100; 0: off)")
@@ -94,12 +94,12 @@ int run(int argc, char** argv)
     fitApp->add_option("--holdout", fit.holdout, "Fraction of rows held out for early stopping and the stored "
                                                  "metrics (default 0.2; 0 with fewer than 100 rows)")
         ->check(realNumber(0.0, 0.9));
-    fitApp->add_option("--lambda", fit.lambda, "Ridge (Tikhonov) weight, outputs standardised (default: chosen on "
-                                               "the held-out rows)")
+    fitApp->add_option("--lambda", fit.lambda, "Ridge (Tikhonov) weight, outputs standardised (default: chosen by "
+                                               "leave-one-out error)")
         ->check(realNumber(0.0, 1e6));
     fitApp->add_option("--frequency-stddev", fit.frequencyStddev,
-                       "Spread of the initial frequencies, inputs scaled to [-1, 1] (default: chosen on the "
-                       "held-out rows)")
+                       "Spread of the initial frequencies, inputs scaled to [-1, 1] (default: chosen by "
+                       "leave-one-out error)")
         ->check(realNumber(1e-6, 1e6));
     fitApp->add_option("--time-limit", fit.timeLimit, "Seconds; past it no layer is started and tuning stops, "
                                                       "keeping what was done (default 0: no limit)")

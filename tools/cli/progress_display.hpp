@@ -75,7 +75,7 @@ private:
     {
         std::string text;
         if (p.stage == "search")
-            text = fmt::format("fit: choosing settings on the held-out rows, trial {}", p.layer + 1);
+            text = fmt::format("fit: choosing settings (leave-one-out), trial {}", p.layer + 1);
         else if (p.stage == "tuning")
             text = fmt::format("fit: tuning epoch {}/{}", p.tuning.epoch, m_epochs);
         else if (p.stage == "sampling")

@@ -1,30 +1,38 @@
 #pragma once
 /// \file
 /// `autoFit`: `fit` with the settings chosen from the data. Every setting the
-/// caller leaves unset is chosen on the held-out rows, in this order, each
-/// step keeping the earlier choices:
+/// caller leaves unset is chosen in this order, each step keeping the earlier
+/// choices:
 ///
 ///   1. width per layer from the number of training rows (autoWidth);
 ///   2. the frequency spread, over frequencyStddevGrid() (shallow trials);
-///   3. lambda, over autoLambdaGrid() (shallow trials);
-///   4. a spread per input (anisotropy, like a kernel with one length scale
-///      per input): passes over the inputs, multiplying one input's spread
-///      by 1/4, 1/2, 2 or 4 where that lowers the held-out error by 3 %,
-///      until a pass changes nothing (at most autoScalePasses), then the
-///      common spread once more (shallow trials);
-///   5. the feature mix: Fourier alone or Fourier + ridge (shallow trials);
+///   3. a spread per input (anisotropy, like a kernel with one length scale
+///      per input): a pattern search that multiplies one input's spread by
+///      step or 1/step where that lowers the trial error by 1 %, in passes
+///      until none changes (at most autoScalePasses), with step 4, then 2,
+///      then sqrt 2; then the common spread once more (shallow trials);
+///   4. the feature mix: Fourier alone or Fourier + ridge (shallow trials);
+///   5. lambda: every shallow trial is scored at its best lambda of
+///      autoLambdaGrid(), and the final trial's lambda is kept (the strongest
+///      within one standard error of the best);
 ///   6. the number of residual layers: up to autoMaxLayers, early-stopped
 ///      when the held-out error stops falling (the best prefix is kept);
 ///   7. Adam tuning: up to autoTuneEpochsFor() epochs, kept only as far as
 ///      it lowers the held-out error (the tuner keeps its best epoch, which
 ///      is epoch 0, the untuned network, when tuning does not pay).
 ///
-/// Shallow trials use at most 4 000 rows and width autoTrialWidth, so steps
-/// 2-5 cost about 30 small solves plus 4 d per pass of step 4. The evidence
-/// for each rule is in DEVELOPERS.md ("Defaults") and bench/results/suite.md.
+/// Shallow trials (detail::ShallowTrials) fit one layer of width at most
+/// autoTrialWidth to as many rows as the final fit trains on (at most 4 000,
+/// a seeded subset) and score it by leave-one-out error on every one of them
+/// (solve/ridge_loo.hpp): five times the rows of the 20 % held-out split, so
+/// less noise in the choices. Steps 6 and 7 use the held-out rows; without
+/// them (validationFraction 0) steps 1-5 still run and no residual layer is
+/// added. The evidence for each rule is in DEVELOPERS.md ("Defaults") and
+/// bench/results/suite.md.
 
 #include <algorithm>
 #include <chrono>
+#include <cmath>
 #include <optional>
 #include <sstream>
 #include <string>
@@ -62,8 +70,10 @@ inline Index autoWidth(Index trainingRows) { return std::clamp<Index>(trainingRo
 inline std::vector<double> autoLambdaGrid() { return {1e-12, 1e-10, 1e-8, 1e-6, 1e-4}; }
 
 constexpr Index autoMaxLayers = 8;
-/// Passes of the per-input spread search; each stops early when it changes nothing.
+/// Passes of the per-input spread search per step size; each stops early when it changes nothing.
 constexpr Index autoScalePasses = 8;
+/// A per-input spread step is taken when it lowers the trial error below this fraction of the current one.
+constexpr double autoScaleGain = 0.99;
 /// Width of the shallow trials that choose spread, scales, lambda and features.
 constexpr Index autoTrialWidth = 256;
 
@@ -113,36 +123,32 @@ inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, cons
     if (automatic.frequencyStddev)
         options.frequencyStddev = *automatic.frequencyStddev;
 
-    // Steps 2-5 on shallow trials; without held-out rows there is nothing to choose on.
+    // Steps 2-5: shallow trials scored by leave-one-out error on as many rows as the fit trains on.
     std::ostringstream chosen;
-    if (options.validationFraction > 0.0) {
-        FitOptions trialOptions = options;
-        trialOptions.width = std::min<Index>(options.width, autoTrialWidth);
-        detail::ShallowTrials trials(inputs, outputs, trialOptions, 4000);
-        double current = -1.0;  // held-out error of the current trial settings; < 0: not yet scored
-        if (!automatic.frequencyStddev) {
-            options.frequencyStddev = trials.best(
-                frequencyStddevGrid(), [](FitOptions& o, double s) { o.frequencyStddev = s; }, &current);
-            chosen << "automatic: frequency stddev\n";
-        }
-        if (!automatic.lambda) {
-            options.lambda =
-                trials.best(autoLambdaGrid(), [](FitOptions& o, double l) { o.lambda = l; }, &current);
-            chosen << "automatic: lambda\n";
-        }
-        if (!automatic.frequencyStddev) {
-            // Per-input spreads (anisotropy), by stretching each input's box.
-            const InputBox dataBox = *trials.settings().inputBox;
-            Vector scales = Vector::Ones(inputs.cols());
+    FitOptions trialOptions = options;
+    trialOptions.width = std::min<Index>(options.width, autoTrialWidth);
+    detail::ShallowTrials trials(inputs, outputs, trialOptions, std::min<Index>(4000, std::max<Index>(training, 2)));
+    if (!automatic.lambda)
+        trials.setLambdas(autoLambdaGrid());
+    double current = -1.0;  // error of the current trial settings
+    if (!automatic.frequencyStddev) {
+        options.frequencyStddev = trials.best(
+            frequencyStddevGrid(), [](FitOptions& o, double s) { o.frequencyStddev = s; }, &current);
+        chosen << "automatic: frequency stddev\n";
+        // Per-input spreads (anisotropy), by stretching each input's box:
+        // a pattern search whose step shrinks from 4 to 2 to sqrt 2.
+        const InputBox dataBox = *trials.settings().inputBox;
+        Vector scales = Vector::Ones(inputs.cols());
+        for (double step : {4.0, 2.0, std::sqrt(2.0)})
             for (Index pass = 0; pass < autoScalePasses; ++pass) {
                 bool changed = false;
                 for (Index j = 0; j < inputs.cols(); ++j)
-                    for (double factor : {0.25, 0.5, 2.0, 4.0}) {
+                    for (double factor : {1.0 / step, step}) {
                         Vector candidate = scales;
                         candidate[j] *= factor;
                         trials.settings().inputBox = detail::stretchedBox(dataBox, candidate);
                         const double error = trials.score();
-                        if (error < 0.97 * current) {
+                        if (error < autoScaleGain * current) {
                             current = error;
                             scales = candidate;
                             changed = true;
@@ -151,20 +157,24 @@ inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, cons
                 if (!changed)
                     break;
             }
-            trials.settings().inputBox = detail::stretchedBox(dataBox, scales);
-            options.frequencyStddev =
-                trials.best(frequencyStddevGrid(), [](FitOptions& o, double s) { o.frequencyStddev = s; });
-            options.inputBox = trials.settings().inputBox;
-            chosen << "automatic: input scales";
-            for (Index j = 0; j < scales.size(); ++j)
-                chosen << ' ' << scales[j];
-            chosen << "\n";
-        }
-        if (!automatic.features) {
-            options.features = trials.best(std::vector<FeatureMix>{FeatureMix::fourier, FeatureMix::both},
-                                           [](FitOptions& o, FeatureMix f) { o.features = f; });
-            chosen << "automatic: features\n";
-        }
+        trials.settings().inputBox = detail::stretchedBox(dataBox, scales);
+        options.frequencyStddev =
+            trials.best(frequencyStddevGrid(), [](FitOptions& o, double s) { o.frequencyStddev = s; });
+        options.inputBox = trials.settings().inputBox;
+        chosen << "automatic: input scales";
+        for (Index j = 0; j < scales.size(); ++j)
+            chosen << ' ' << scales[j];
+        chosen << "\n";
+    }
+    if (!automatic.features) {
+        options.features = trials.best(std::vector<FeatureMix>{FeatureMix::fourier, FeatureMix::both},
+                                       [](FitOptions& o, FeatureMix f) { o.features = f; });
+        chosen << "automatic: features\n";
+    }
+    if (!automatic.lambda) {
+        trials.score();  // the lambda of the final trial settings
+        options.lambda = trials.bestLambda();
+        chosen << "automatic: lambda\n";
     }
     options.layers = automatic.layers.value_or(options.validationFraction > 0.0 ? autoMaxLayers : 0);
     const Index stateWidth = std::max<Index>(1, options.width / 4);
@@ -173,8 +183,9 @@ inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, cons
         options.validationFraction > 0.0 ? autoTuneEpochsFor(training, expectedWidth) : 0);
     options.tune.patience = 10;
     if (automatic.timeLimit > 0.0)
-        options.deadline = start + std::chrono::duration_cast<std::chrono::steady_clock::duration>(
-                                       std::chrono::duration<double>(automatic.timeLimit));
+        options.deadline = start +
+            std::chrono::duration_cast<std::chrono::steady_clock::duration>(
+                               std::chrono::duration<double>(automatic.timeLimit));
     Network network = fit(inputs, outputs, options);
     ModelRecord record = network.record();
     record.settings += chosen.str();

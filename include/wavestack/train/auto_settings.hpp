@@ -12,6 +12,7 @@
 #include "wavestack/core/error.hpp"
 #include "wavestack/core/random.hpp"
 #include "wavestack/core/types.hpp"
+#include "wavestack/solve/ridge_loo.hpp"
 #include "wavestack/train/fit.hpp"
 
 namespace wavestack {
@@ -31,13 +32,16 @@ inline std::vector<double> frequencyStddevGrid()
 namespace detail {
 
 /// Shallow Gaussian-sampled trial fits on (a seeded subset of at most
-/// `maxRows` rows of) the data, each scored by its held-out relative RMSE
-/// averaged over outputs. Trials report through options.progress with stage
+/// `maxRows` rows of) the data, each scored by its leave-one-out relative
+/// RMSE on every row of the subset (solve/ridge_loo.hpp), averaged over
+/// outputs, at the best lambda of lambdas(). Every trial draws its
+/// parameters from the same seed, so two settings are compared on the same
+/// random numbers. Trials report through options.progress with stage
 /// "search" (layer = trial number); a false return cancels (throws Cancelled).
 class ShallowTrials {
 public:
     ShallowTrials(const MatrixView& inputs, const MatrixView& outputs, const FitOptions& options, Index maxRows)
-        : m_options(options), m_start(std::chrono::steady_clock::now())
+        : m_options(options), m_loo(ThreadReduction(options.threads)), m_start(std::chrono::steady_clock::now())
     {
         checkTrainingData(inputs, outputs, options);
         m_x = inputs;
@@ -48,40 +52,64 @@ public:
             m_x = selectRows(inputs, order, 0, maxRows);
             m_y = selectRows(outputs, order, 0, maxRows);
         }
+        m_y = OutputScaler::fromData(m_y).apply(m_y);
         m_trial = options;
-        m_trial.layers = 0;
-        m_trial.tune.epochs = 0;
-        m_trial.initialization = Initialization::layerByLayer;
-        m_trial.sampler = SamplerKind::gaussian;
-        if (m_trial.validationFraction <= 0.0)
-            m_trial.validationFraction = 0.2;
+        m_lambdas = {options.lambda};
         if (!m_trial.inputBox)  // scale as the full data will be scaled, not as the subset
             m_trial.inputBox = InputBox{inputs.colwise().minCoeff().transpose(),
                                         inputs.colwise().maxCoeff().transpose()};
     }
 
-    /// The trial settings; change a field, then call score().
+    /// The trial settings; change a field, then call score(). Only the
+    /// frequency spread, width, features and input box are read.
     FitOptions& settings() { return m_trial; }
 
-    /// Held-out error of a shallow fit with the current settings; +inf when
-    /// the solver fails (such settings are then simply not chosen).
+    /// Tikhonov weights each trial chooses from (default: options.lambda).
+    void setLambdas(std::vector<double> lambdas) { m_lambdas = std::move(lambdas); }
+    const std::vector<double>& lambdas() const { return m_lambdas; }
+
+    /// The lambda the last score() chose: the strongest within one standard
+    /// error of its lowest error (the score itself is the lowest error).
+    double bestLambda() const { return m_bestLambda; }
+
+    /// Leave-one-out error of a shallow fit with the current settings; +inf
+    /// when the solve fails (such settings are then simply not chosen).
     double score()
     {
         const Index number = m_count++;
-        m_trial.progress = [&](const FitProgress&) {
-            const double seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - m_start).count();
-            return !m_options.progress || m_options.progress(FitProgress{"search", number, seconds, SamplerProgress(),
-                                                                         -1.0, -1.0, TuneProgress()});
-        };
+        const double seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - m_start).count();
+        if (m_options.progress &&
+            !m_options.progress(FitProgress{"search", number, seconds, SamplerProgress(), -1.0, -1.0, TuneProgress()}))
+            throw Cancelled("fit: cancelled by the progress callback (stage 'search', trial " + std::to_string(number) +
+                            ")");
+        const Matrix u = InputScaler(*m_trial.inputBox).apply(m_x);
+        Random random(m_trial.seed);
+        const std::vector<FeatureGroup> groups =
+            GaussianSampler(m_trial.frequencyStddev)
+                .sample(Shape{u.cols()}, groupShapes(m_trial.features, m_trial.width), random);
+        Index count = 0;
+        for (const auto& group : groups)
+            count += group.featureCount();
+        m_features.resize(u.rows(), count);
+        layerFeatures(groups, u, Matrix(u.rows(), 0), m_features);
+        double lowest = std::numeric_limits<double>::infinity();
         try {
-            const Network network = fit(m_x, m_y, m_trial);
-            double error = 0.0;
-            for (const auto& metric : network.record().heldOutMetrics)
-                error += metric.relativeRmse / double(network.record().heldOutMetrics.size());
-            return std::isfinite(error) ? error : std::numeric_limits<double>::infinity();
+            const std::vector<LeaveOneOutError> errors = m_loo.errors(m_features, m_y, m_lambdas);
+            std::size_t best = 0;
+            for (std::size_t i = 0; i < errors.size(); ++i)
+                if (errors[i].relativeRmse < errors[best].relativeRmse)
+                    best = i;
+            lowest = errors[best].relativeRmse;
+            // One-standard-error rule (Hastie, Tibshirani & Friedman, The Elements of
+            // Statistical Learning, 2009, sec. 7.10): the strongest lambda whose error
+            // is within one standard error of the lowest.
+            m_bestLambda = m_lambdas[best];
+            for (std::size_t i = 0; i < errors.size(); ++i)
+                if (m_lambdas[i] > m_bestLambda && errors[i].relativeRmse <= lowest + errors[best].standardError)
+                    m_bestLambda = m_lambdas[i];
         } catch (const NumericalError&) {
-            return std::numeric_limits<double>::infinity();
         }
+        return lowest;
     }
 
     /// The value of `grid` with the lowest score after `set(value)`; leaves
@@ -91,23 +119,35 @@ public:
     {
         T chosen = grid.front();
         double lowest = std::numeric_limits<double>::infinity();
+        double lambda = m_lambdas.front();
         for (const T& value : grid) {
             set(m_trial, value);
             const double error = score();
             if (error < lowest) {
                 lowest = error;
                 chosen = value;
+                lambda = m_bestLambda;
             }
         }
         set(m_trial, chosen);
+        m_bestLambda = lambda;
         if (bestError)
             *bestError = lowest;
         return chosen;
     }
 
 private:
+    /// What GaussianSampler asks of a problem: parameter row lengths.
+    struct Shape {
+        Index inputs;
+        Index parameterSize(const GroupShape& shape) const { return wavestack::parameterSize(shape.kind, inputs); }
+    };
+
     FitOptions m_options, m_trial;
-    Matrix m_x, m_y;
+    RidgeLeaveOneOut<ThreadReduction> m_loo;
+    Matrix m_x, m_y, m_features;
+    std::vector<double> m_lambdas;
+    double m_bestLambda = 0.0;
     std::chrono::steady_clock::time_point m_start;
     Index m_count = 0;
 };
@@ -115,7 +155,7 @@ private:
 }  // namespace detail
 
 /// The Gaussian frequency spread (FitOptions::frequencyStddev) with the
-/// lowest held-out relative RMSE, averaged over outputs, of shallow
+/// lowest leave-one-out relative RMSE, averaged over outputs, of shallow
 /// Gaussian-sampled fits with `options`' width, features and lambda, over
 /// frequencyStddevGrid() (inputs scaled to [-1, 1]).
 ///
