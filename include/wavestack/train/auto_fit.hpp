@@ -66,8 +66,10 @@ struct AutoFitOptions {
 /// Parameter rows per layer for `trainingRows` rows: see DEVELOPERS.md.
 inline Index autoWidth(Index trainingRows) { return std::clamp<Index>(trainingRows / 4, 16, 512); }
 
-/// Relative Tikhonov weights tried (outputs standardised).
-inline std::vector<double> autoLambdaGrid() { return {1e-12, 1e-10, 1e-8, 1e-6, 1e-4}; }
+/// Relative Tikhonov weights tried (outputs standardised): steps of 100 where
+/// smooth targets choose, of 10 from 1e-4 up, where noisy-looking targets
+/// such as the Si-front choose (DEVELOPERS.md, "Defaults").
+inline std::vector<double> autoLambdaGrid() { return {1e-12, 1e-10, 1e-8, 1e-6, 1e-4, 1e-3, 1e-2, 1e-1, 1.0}; }
 
 constexpr Index autoMaxLayers = 8;
 /// Passes of the per-input spread search per step size; each stops early when it changes nothing.
