@@ -20,6 +20,7 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <string>
 #include <utility>
 #include <vector>
 
@@ -42,9 +43,10 @@ struct LeaveOneOutError {
 };
 
 /// Keeps its Gram, eigen and product buffers between calls.
-template <class Reduction = SerialReduction> class RidgeLeaveOneOut {
+template <class Reduction = SerialReduction>
+class RidgeLeaveOneOut {
 public:
-    explicit RidgeLeaveOneOut(Reduction reduction = Reduction()) : m_assembler(std::move(reduction)) { }
+    explicit RidgeLeaveOneOut(Reduction reduction = Reduction()) : m_assembler(std::move(reduction)) {}
 
     /// Leave-one-out errors per lambda. Features N x P, targets N x m
     /// (N >= 2). +inf for a lambda whose hat matrix has a diagonal entry at 1

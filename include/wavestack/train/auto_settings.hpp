@@ -34,7 +34,7 @@ namespace detail {
 /// Shallow Gaussian-sampled trial fits on (a seeded subset of at most
 /// `maxRows` rows of) the data, each scored by its leave-one-out relative
 /// RMSE on every row of the subset (solve/ridge_loo.hpp), averaged over
-/// outputs, at the best lambda of lambdas(). Every trial draws its
+/// outputs, at the best lambda of setLambdas(). Every trial draws its
 /// parameters from the same seed, so two settings are compared on the same
 /// random numbers. Trials report through options.progress with stage
 /// "search" (layer = trial number); a false return cancels (throws Cancelled).
@@ -66,7 +66,6 @@ public:
 
     /// Tikhonov weights each trial chooses from (default: options.lambda).
     void setLambdas(std::vector<double> lambdas) { m_lambdas = std::move(lambdas); }
-    const std::vector<double>& lambdas() const { return m_lambdas; }
 
     /// The lambda the last score() chose: the strongest within one standard
     /// error of its lowest error (the score itself is the lowest error).
