@@ -219,8 +219,13 @@ int runFit(const FitCommand& command)
         return exitOk;
     const auto held = Index(std::ceil(options.validationFraction * double(table.rows())));
     fmt::print("wrote {}\n", command.model);
-    fmt::print("rows:    {} ({} training, {} held out)\n", table.rows(), table.rows() - held, held);
     const ModelRecord& record = network.record();
+    if (record.settings.find("refit on all") != std::string::npos)
+        fmt::print("rows:    {} ({} held out to choose settings and measure the error below, then the model was "
+                   "refitted on all rows)\n",
+                   table.rows(), held);
+    else
+        fmt::print("rows:    {} ({} training, {} held out)\n", table.rows(), table.rows() - held, held);
     fmt::print("inputs:  {} ({})\n", inputs.cols(), fmt::join(options.inputNames, ", "));
     if (!columns.skipped.empty())
         fmt::print("skipped: {} (text in the first data row)\n", fmt::join(columns.skipped, ", "));

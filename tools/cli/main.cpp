@@ -81,7 +81,7 @@ int run(int argc, char** argv)
     fitApp->add_option("--layers", fit.layers, "Residual layers after the initial one, at most (default 8, "
                                                "early-stopped on the held-out rows)")
         ->check(wholeNumber(0));
-    fitApp->add_option("--width", fit.width, "Parameter rows per layer (default: training rows / 4, in [16, 512])")
+    fitApp->add_option("--width", fit.width, "Parameter rows per layer (default: training rows / 2, in [16, 512])")
         ->check(wholeNumber(1));
     fitApp->add_option("--sampler", fit.sampler, "Frequency sampler (default gaussian)")
         ->check(CLI::IsMember({"metropolis", "gaussian"}));

@@ -48,7 +48,8 @@ public:
             return false;
         if (m_mode == Mode::quiet)
             return true;
-        const bool milestone = p.stage != "sampling" && p.stage != "tuning" && p.stage != "search";
+        const bool milestone =
+            p.stage != "sampling" && p.stage != "tuning" && p.stage != "search" && p.stage != "refit";
         const double minimumGap = m_mode == Mode::live ? 0.1 : 5.0;
         if (!milestone && p.seconds - m_lastPrint < minimumGap)
             return true;
@@ -78,6 +79,8 @@ private:
             text = fmt::format("fit: choosing settings (leave-one-out), trial {}", p.layer + 1);
         else if (p.stage == "tuning")
             text = fmt::format("fit: tuning epoch {}/{}", p.tuning.epoch, m_epochs);
+        else if (p.stage == "refit")
+            text = fmt::format("fit: settings chosen; refitting on every row, layer {}", p.layer);
         else if (p.stage == "sampling")
             text = fmt::format("fit: layer {}/{} sampling {}/{}", p.layer, m_layers, p.sampler.iteration,
                                p.sampler.iterations);
@@ -108,8 +111,8 @@ private:
         const double perLayer = double(m_iterations + 1);
         const double total = double(m_layers + 1) * perLayer + double(m_epochs);
         double done = 0.0;
-        if (p.stage == "search")
-            return 0.0;  // short, and its length does not predict the rest
+        if (p.stage == "search" || p.stage == "refit")
+            return 0.0;  // search: short and does not predict the rest; refit: outside the plan above
         if (p.stage == "tuning")
             done = double(m_layers + 1) * perLayer + double(p.tuning.epoch);
         else if (p.stage == "sampling")
