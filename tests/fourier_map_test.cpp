@@ -1,39 +1,13 @@
-// Tests of the Fourier feature map (features/fourier_map.hpp) and its sincos kernel.
+// Tests of the Fourier feature map (features/fourier_map.hpp); its sine and
+// cosine kernel is checked in sincos_test.cpp.
 #include <doctest/doctest.h>
 
 #include <cmath>
 
 #include <wavestack/core/random.hpp>
-#include <wavestack/detail/simd.hpp>
 #include <wavestack/features/feature_group.hpp>
 
 using namespace wavestack;
-
-TEST_CASE("vectorised sincos agrees with std::sin and std::cos")
-{
-    // Reference: the C library's sin/cos (glibc, correctly rounded to < 1 ulp in this range).
-    Random random(3);
-    for (Index count : {0, 1, 3, 8, 17, 1000}) {
-        Vector angle(count), sine(count), cosine(count);
-        for (Index i = 0; i < count; ++i)
-            angle[i] = (random.uniform() - 0.5) * 400.0;  // |angle| <= 200: large frequencies times scaled inputs
-        detail::sincos(angle.data(), sine.data(), cosine.data(), count);
-        for (Index i = 0; i < count; ++i) {
-            CHECK(std::abs(sine[i] - std::sin(angle[i])) < 4e-16 * std::max(1.0, std::abs(angle[i])));
-            CHECK(std::abs(cosine[i] - std::cos(angle[i])) < 4e-16 * std::max(1.0, std::abs(angle[i])));
-        }
-    }
-}
-
-TEST_CASE("sincos may write the cosine over its input")
-{
-    Vector angle = Vector::LinSpaced(13, -3.0, 3.0);
-    const Vector original = angle;
-    Vector sine(13);
-    detail::sincos(angle.data(), sine.data(), angle.data(), 13);
-    for (Index i = 0; i < 13; ++i)
-        CHECK(angle[i] == doctest::Approx(std::cos(original[i])).epsilon(1e-15));
-}
 
 TEST_CASE("the feature matrix holds cosines then sines of w_k . u")
 {

@@ -1,15 +1,17 @@
 #pragma once
 /// \file
 /// Small vectorised kernels shared by feature evaluation, for double and
-/// float: sine and cosine of an array, tanh in place, and dot products. Each
-/// uses xsimd's widest batch for the build's target (compile with
-/// -march=native or -mavx2 to get 4 or 8 double lanes, twice as many floats).
+/// float: sine and cosine of an array (detail/sincos.hpp), tanh in place,
+/// and dot products. Each uses xsimd's widest batch for the build's target
+/// (compile with -march=native or -mavx2 to get 4 or 8 double lanes, twice
+/// as many floats).
 
 #include <cmath>
 
 #include <xsimd/xsimd.hpp>
 
 #include "wavestack/core/types.hpp"
+#include "wavestack/detail/sincos.hpp"
 
 namespace wavestack::detail {
 
@@ -24,7 +26,8 @@ void sincos(const T* angle, T* sine, T* cosine, Index count) noexcept
     using Batch = xsimd::batch<T>;
     const Index vectorEnd = count - count % lanes<T>;
     for (Index i = 0; i < vectorEnd; i += lanes<T>) {
-        const auto [s, c] = xsimd::sincos(Batch::load_unaligned(angle + i));
+        Batch s, c;
+        sincos(Batch::load_unaligned(angle + i), s, c);
         s.store_unaligned(sine + i);
         c.store_unaligned(cosine + i);
     }
