@@ -126,6 +126,18 @@ void checkSameEverywhere(const Network& a, const Network& b, Index d)
         const Vector xi = x.row(i).transpose();
         CHECK((a.evaluate(xi).array() == b.evaluate(xi).array()).all());
     }
+    // The float evaluator is derived from the loaded double parameters, so it
+    // must be bit-identical too.
+    const FloatNetwork fa(a), fb(b);
+    const Eigen::MatrixXf xf = x.cast<float>();
+    CHECK((fa.evaluateBatch(xf).array() == fb.evaluateBatch(xf).array()).all());
+    Eigen::VectorXf ya(a.outputCount()), yb(b.outputCount());
+    for (Index i = 0; i < 20; ++i) {
+        const Eigen::VectorXf xi = xf.row(i).transpose();
+        fa.evaluate(xi.data(), ya.data());
+        fb.evaluate(xi.data(), yb.data());
+        CHECK((ya.array() == yb.array()).all());
+    }
 }
 
 }  // namespace
@@ -137,7 +149,7 @@ TEST_CASE("CRC-32 has the standard check value")
     CHECK(detail::crc32(reinterpret_cast<const unsigned char*>(text), 9) == 0xCBF43926U);
 }
 
-TEST_CASE("save, load, evaluate is bit-identical for shallow and residual networks, one and three outputs")
+TEST_CASE("save, load, evaluate is bit-identical for shallow and residual networks, one and three outputs, double and float")
 {
     for (Index m : {1, 3})
         for (Index layers : {0, 2}) {
