@@ -1,6 +1,8 @@
 // Gram assembly and Metropolis iteration cost, next to the machine's FMA peak
 // measured in the same run. Reported GFLOP/s for the Gram matrix count
 // N * P * (P + 1) flops (lower triangle, P = 2K features).
+#include <string>
+
 #include <benchmark/benchmark.h>
 
 #include <xsimd/xsimd.hpp>
@@ -59,6 +61,12 @@ void gramAssembly(benchmark::State& state, Reduction reduction)
     const double flops = double(n) * double(p) * double(p + 1);
     state.counters["GFLOP/s"] = benchmark::Counter(flops * 1e-9, benchmark::Counter::kIsIterationInvariantRate);
     state.counters["threads"] = double(reduction.workers());
+#if defined(WAVESTACK_USE_CBLAS) && defined(OPENBLAS_VERSION)
+    // Debian 12's OpenBLAS 0.3.21 does not know AMD Zen 4/5 and picks its
+    // AVX2 kernels there; OPENBLAS_CORETYPE=SkylakeX selects the AVX-512 ones
+    // (DEVELOPERS.md, "Gram assembly"). Say which kernel ran.
+    state.SetLabel(std::string("openblas=") + openblas_get_corename());
+#endif
 }
 
 void gramSerial(benchmark::State& state) { gramAssembly(state, SerialReduction()); }
