@@ -39,6 +39,7 @@ const char* mixName(FeatureMix mix)
 
 int main(int argc, char** argv)
 {
+    retainFreedMemory();  // core/allocator.hpp
     const std::string tablePath = argc > 1 ? argv[1] : "";
     const Index iterations = argc > 2 ? std::stol(argv[2]) : 40;
     const test_functions::Sample train = siFront(10000, 1), test = siFront(20000, 2);

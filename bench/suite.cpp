@@ -21,6 +21,7 @@
 #include <fmt/ranges.h>
 
 #include <wavestack/check/metrics.hpp>
+#include <wavestack/core/allocator.hpp>
 #include <wavestack/check/test_functions.hpp>
 #include <wavestack/train/auto_fit.hpp>
 
@@ -97,6 +98,7 @@ std::string machine()
 
 int main(int argc, char** argv)
 {
+    retainFreedMemory();  // core/allocator.hpp: what a training program should do
     std::string out = "suite.md", dataDir;
     std::vector<std::string> only;
     std::vector<Index> sizes = {1000, 10000};

@@ -82,6 +82,7 @@ std::string slicePlot(const Vector& t, const std::vector<std::pair<std::string, 
 
 int main(int argc, char** argv)
 {
+    retainFreedMemory();  // core/allocator.hpp
     const std::string folder = argc > 1 ? argv[1] : ".";
     const Index epochs = argc > 2 ? std::stol(argv[2]) : 300;
     const test_functions::Sample train = siFront(10000, 11), test = siFront(20000, 12);

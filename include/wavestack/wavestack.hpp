@@ -7,6 +7,7 @@
 /// inner loops. Start with wavestack::fit and wavestack::Network.
 
 #include "wavestack/check/metrics.hpp"
+#include "wavestack/core/allocator.hpp"
 #include "wavestack/core/error.hpp"
 #include "wavestack/core/random.hpp"
 #include "wavestack/core/types.hpp"

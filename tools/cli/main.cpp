@@ -14,6 +14,7 @@
 #include "commands.hpp"
 #include "input_error.hpp"
 #include "interrupt.hpp"
+#include "wavestack/core/allocator.hpp"
 #include "wavestack/core/error.hpp"
 #include "wavestack/io/model_file.hpp"
 
@@ -178,6 +179,7 @@ int run(int argc, char** argv)
 
 int main(int argc, char** argv)
 {
+    wavestack::retainFreedMemory();  // fits run about 1.5x faster (core/allocator.hpp)
     // Every failure becomes one line on stderr and an exit code; never a stack trace.
     try {
         return run(argc, argv);
