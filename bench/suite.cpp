@@ -115,6 +115,8 @@ int main(int argc, char** argv)
     app.add_option("--width", width, "Fix the width (experiments; default: automatic)");
     app.add_option("--layers", layers, "Fix the residual layers (experiments)");
     app.add_option("--tune", tune, "Fix the tuning epochs (experiments)");
+    bool metropolis = false;
+    app.add_flag("--metropolis", metropolis, "Sample with the Metropolis chain instead of the Gaussian default");
     CLI11_PARSE(app, argc, argv);
 
     std::vector<std::string> rows;
@@ -144,6 +146,8 @@ int main(int argc, char** argv)
                 options.layers = layers;
             if (tune >= 0)
                 options.tuneEpochs = tune;
+            if (metropolis)
+                options.sampler = SamplerKind::metropolis;
             const Network network = autoFit(train.x, train.y, options);
             const Matrix predicted = network.evaluateBatch(test.x);
             const ErrorMetrics m = measureErrors(predicted.col(0), test.y.col(0));
