@@ -49,7 +49,8 @@ public:
         if (m_mode == Mode::quiet)
             return true;
         const bool milestone =
-            p.stage != "sampling" && p.stage != "tuning" && p.stage != "search" && p.stage != "refit";
+            p.stage != "sampling" && p.stage != "tuning" && p.stage != "search" && p.stage != "refit" &&
+            p.stage != "compact";
         const double minimumGap = m_mode == Mode::live ? 0.1 : 5.0;
         if (!milestone && p.seconds - m_lastPrint < minimumGap)
             return true;
@@ -79,6 +80,10 @@ private:
             text = fmt::format("fit: choosing settings (leave-one-out), trial {}", p.layer + 1);
         else if (p.stage == "tuning")
             text = fmt::format("fit: tuning epoch {}/{}", p.tuning.epoch, m_epochs);
+        else if (p.stage == "compact" && p.tuning.epoch > 0)
+            text = fmt::format("fit: front check: compact network, tuning epoch {}", p.tuning.epoch);
+        else if (p.stage == "compact")
+            text = fmt::format("fit: front check: compact network, layer {}", p.layer);
         else if (p.stage == "refit")
             text = fmt::format("fit: settings chosen; refitting on every row, layer {}", p.layer);
         else if (p.stage == "sampling")
@@ -111,8 +116,8 @@ private:
         const double perLayer = double(m_iterations + 1);
         const double total = double(m_layers + 1) * perLayer + double(m_epochs);
         double done = 0.0;
-        if (p.stage == "search" || p.stage == "refit")
-            return 0.0;  // search: short and does not predict the rest; refit: outside the plan above
+        if (p.stage == "search" || p.stage == "refit" || p.stage == "compact")
+            return 0.0;  // search: short and does not predict the rest; refit, compact: outside the plan above
         if (p.stage == "tuning")
             done = double(m_layers + 1) * perLayer + double(p.tuning.epoch);
         else if (p.stage == "sampling")

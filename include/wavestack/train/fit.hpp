@@ -57,7 +57,8 @@ struct FitProgress {
     /// stopped improving and later layers were not trained; "tuning": once
     /// per Adam epoch (see `tuning`); "search": a trial fit of
     /// chooseFrequencyStddev (train/auto_settings.hpp), `layer` = trial index;
-    /// "refit": any report of autoFit's final fit on every row.
+    /// "compact": any report of autoFit's compact network tuned by Adam
+    /// (its step 8); "refit": any report of autoFit's final fit on every row.
     std::string stage;
     Index layer = 0;               ///< 0 is the initial layer
     double seconds = 0.0;          ///< wall time since fit started
