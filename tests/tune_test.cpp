@@ -175,3 +175,33 @@ TEST_CASE("Glorot initialisation trains the same shape by Adam alone")
     CHECK(net.layers()[1].groups.size() == 2);  // input group + state group, as layer-by-layer builds
     CHECK(net.record().heldOutMetrics[0].relativeRmse < 1.0);  // it learned something
 }
+
+TEST_CASE("early stopping waits for the second half of the learning-rate schedule")
+{
+    // A rate of 0.3 makes the held-out error worse from the first epoch on;
+    // patience 1 would then stop at epoch 1. The held-out error is noisy
+    // while the rate is high (see tune.hpp), so the count starts half way.
+    Random random(9);
+    Matrix x(600, 2), y(600, 1);
+    for (Index i = 0; i < 600; ++i) {
+        x(i, 0) = 2.0 * random.uniform() - 1.0;
+        x(i, 1) = 2.0 * random.uniform() - 1.0;
+        y(i, 0) = std::sin(2.0 * x(i, 0)) * x(i, 1);
+    }
+    FitOptions options;
+    options.width = 16;
+    options.validationFraction = 0.2;
+    options.tune.epochs = 20;
+    options.tune.patience = 1;
+    options.tune.warmupSteps = 0;
+    options.tune.frequencyRate = 0.3;
+    options.tune.amplitudeRate = 0.3;
+    Index last = 0;
+    options.progress = [&](const FitProgress& p) {
+        if (p.stage == "tuning")
+            last = p.tuning.epoch;
+        return true;
+    };
+    fit(x, y, options);
+    CHECK(last > options.tune.epochs / 2);
+}
