@@ -19,6 +19,9 @@ namespace {
 
 using testing::randomNormal;
 
+/// sin(2 u_0) u_1: a smooth target for the tuner tests.
+const auto smoothProduct = [](const auto& u) { return std::sin(2.0 * u[0]) * u[1]; };
+
 /// d = 3, m = 2, L = 2 residual layers, K = 5 rows per group; every layer has
 /// Fourier and ridge groups on the input, residual layers also on the state.
 std::vector<Layer> randomLayers(Random& random)
@@ -157,20 +160,14 @@ TEST_CASE("tuning never leaves the held-out error worse, and fixes what sampling
 
 TEST_CASE("Glorot initialisation trains the same shape by Adam alone")
 {
-    Random random(8);
-    Matrix x(1000, 2), y(1000, 1);
-    for (Index i = 0; i < 1000; ++i) {
-        x(i, 0) = 2.0 * random.uniform() - 1.0;
-        x(i, 1) = 2.0 * random.uniform() - 1.0;
-        y(i, 0) = std::sin(2.0 * x(i, 0)) * x(i, 1);
-    }
+    const testing::Sample data = testing::uniformSample(1000, 2, 8, smoothProduct);
     FitOptions options;
     options.width = 16;
     options.layers = 2;
     options.initialization = Initialization::glorot;
     options.tune.epochs = 30;
     options.validationFraction = 0.2;
-    const Network net = fit(x, y, options);
+    const Network net = fit(data.x, data.y, options);
     CHECK(net.residualLayerCount() == 2);
     CHECK(net.layers()[1].groups.size() == 2);  // input group + state group, as layer-by-layer builds
     CHECK(net.record().heldOutMetrics[0].relativeRmse < 1.0);  // it learned something
@@ -181,13 +178,7 @@ TEST_CASE("early stopping waits for the second half of the learning-rate schedul
     // A rate of 0.3 makes the held-out error worse from the first epoch on;
     // patience 1 would then stop at epoch 1. The held-out error is noisy
     // while the rate is high (see tune.hpp), so the count starts half way.
-    Random random(9);
-    Matrix x(600, 2), y(600, 1);
-    for (Index i = 0; i < 600; ++i) {
-        x(i, 0) = 2.0 * random.uniform() - 1.0;
-        x(i, 1) = 2.0 * random.uniform() - 1.0;
-        y(i, 0) = std::sin(2.0 * x(i, 0)) * x(i, 1);
-    }
+    const testing::Sample data = testing::uniformSample(600, 2, 9, smoothProduct);
     FitOptions options;
     options.width = 16;
     options.validationFraction = 0.2;
@@ -202,6 +193,6 @@ TEST_CASE("early stopping waits for the second half of the learning-rate schedul
             last = p.tuning.epoch;
         return true;
     };
-    fit(x, y, options);
+    fit(data.x, data.y, options);
     CHECK(last > options.tune.epochs / 2);
 }

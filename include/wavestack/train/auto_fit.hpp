@@ -47,6 +47,7 @@
 #include <algorithm>
 #include <chrono>
 #include <cmath>
+#include <functional>
 #include <limits>
 #include <optional>
 #include <sstream>
@@ -135,6 +136,17 @@ constexpr double autoCompactThreshold = 1e-2;
 constexpr double autoCompactBudget = 5e9;
 
 namespace detail {
+
+/// A progress callback that passes every report of a second fit on to
+/// `progress` under one stage name.
+inline std::function<bool(const FitProgress&)> reportedAs(const char* stage,
+                                                          const std::function<bool(const FitProgress&)>& progress)
+{
+    return [stage, progress](FitProgress p) {
+        p.stage = stage;
+        return !progress || progress(p);
+    };
+}
 
 /// Mean over outputs of the held-out relative RMSE stored with a model.
 inline double heldOutError(const ModelRecord& record)
@@ -279,10 +291,7 @@ inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, cons
         // Step 8: a compact network trained by Adam, kept if it does better
         // on the same held-out rows (same seed, same split).
         FitOptions compactOptions = detail::compactTunedOptions(options, training);
-        compactOptions.progress = [&automatic](FitProgress p) {
-            p.stage = "compact";
-            return !automatic.progress || automatic.progress(p);
-        };
+        compactOptions.progress = detail::reportedAs("compact", automatic.progress);
         Network compact = fit(inputs, outputs, compactOptions);
         const double compactError = detail::heldOutError(compact.record()), error = detail::heldOutError(record);
         std::ostringstream verdict;
@@ -320,10 +329,7 @@ inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, cons
                 lowest = step.validationRmse;
                 all.tune.epochs = step.epoch;
             }
-        all.progress = [&automatic](FitProgress p) {
-            p.stage = "refit";
-            return !automatic.progress || automatic.progress(p);
-        };
+        all.progress = detail::reportedAs("refit", automatic.progress);
         Network refit = fit(inputs, outputs, all);
         // Kept unless the deadline or a dropped layer cut it short.
         if (refit.layers().size() == network.layers().size()) {
