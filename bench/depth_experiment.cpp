@@ -95,7 +95,6 @@ int main(int argc, char** argv)
         double error[2], seconds[2];
         for (int deep = 0; deep < 2; ++deep) {
             FitOptions base;
-            base.width = 128;
             base.validationFraction = 0.2;
             base.threads = 2;
             base.seed = seed;

@@ -120,7 +120,6 @@ int main(int argc, char** argv)
                 // noisy while the rate is high, stopped d = 3 at epoch 115
                 // with 0.093 where the full 300 epochs reached 0.062.
                 FitOptions base;
-                base.width = 128;
                 base.validationFraction = 0.2;
                 base.threads = 2;
                 base.seed = seed;
@@ -163,8 +162,7 @@ int main(int argc, char** argv)
         << " epochs (the whole schedule, no early stop; the best held-out epoch is kept), batch 128, rates 2e-3, "
            "amplitude penalty 1e-3 after layer-by-layer training (autoFit's compact network, "
            "detail::compactTunedOptions) and none after Glorot initialisation (1e-3 gave 0.28-0.29 there in d = 3); "
-           "2 threads. Produced by "
-           "bench/tuning_experiment.cpp.\n\n"
+           "2 threads. Produced by bench/tuning_experiment.cpp.\n\n"
         << table.str();
     return 0;
 }
