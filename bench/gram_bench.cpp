@@ -61,12 +61,22 @@ void gramAssembly(benchmark::State& state, Reduction reduction)
     const double flops = double(n) * double(p) * double(p + 1);
     state.counters["GFLOP/s"] = benchmark::Counter(flops * 1e-9, benchmark::Counter::kIsIterationInvariantRate);
     state.counters["threads"] = double(reduction.workers());
-#if defined(WAVESTACK_USE_CBLAS) && defined(OPENBLAS_VERSION)
-    // Debian 12's OpenBLAS 0.3.21 does not know AMD Zen 4/5 and picks its
-    // AVX2 kernels there; OPENBLAS_CORETYPE=SkylakeX selects the AVX-512 ones
-    // (DEVELOPERS.md, "Gram assembly"). Say which kernel ran.
-    state.SetLabel(std::string("openblas=") + openblas_get_corename());
-#endif
+}
+
+/// Eigen 3.4's own symmetric rank update on the same matrix, one thread:
+/// what the library's kernel (detail/gram_kernel.hpp) is measured against.
+void gramEigenRankUpdate(benchmark::State& state)
+{
+    const Index n = 10000, p = 2 * state.range(0);
+    const Matrix phi = randomFeatures(n, p);
+    Matrix gram(p, p);
+    for (auto _ : state) {
+        gram.triangularView<Eigen::Lower>().setZero();
+        gram.selfadjointView<Eigen::Lower>().rankUpdate(phi.transpose(), 1.0);
+        benchmark::DoNotOptimize(gram.data());
+    }
+    const double flops = double(n) * double(p) * double(p + 1);
+    state.counters["GFLOP/s"] = benchmark::Counter(flops * 1e-9, benchmark::Counter::kIsIterationInvariantRate);
 }
 
 void gramSerial(benchmark::State& state) { gramAssembly(state, SerialReduction()); }
@@ -100,6 +110,7 @@ void metropolisIteration(benchmark::State& state)
 BENCHMARK(fmaPeak)->Unit(benchmark::kMillisecond);
 BENCHMARK(gramSerial)->Arg(128)->Arg(256)->Arg(512)->Unit(benchmark::kMillisecond)->UseRealTime();
 BENCHMARK(gramTwoThreads)->Arg(128)->Arg(256)->Arg(512)->Unit(benchmark::kMillisecond)->UseRealTime();
+BENCHMARK(gramEigenRankUpdate)->Arg(128)->Arg(256)->Arg(512)->Unit(benchmark::kMillisecond)->UseRealTime();
 BENCHMARK(metropolisIteration)
     ->Args({128, 1})->Args({256, 1})->Args({512, 1})->Args({256, 2})
     ->Unit(benchmark::kMillisecond)->UseRealTime()->Iterations(1);

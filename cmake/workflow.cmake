@@ -12,7 +12,7 @@ cmake_minimum_required(VERSION 3.16)
 # ===========================================================================
 set(WAVESTACK_PACKAGES_COMMON g++ cmake make libeigen3-dev libxsimd-dev libcli11-dev libfmt-dev)
 set(WAVESTACK_PACKAGES_DEMO)
-set(WAVESTACK_PACKAGES_TEST doctest-dev libbenchmark-dev libopenblas-serial-dev clang libclang-rt-14-dev python3)
+set(WAVESTACK_PACKAGES_TEST doctest-dev libbenchmark-dev clang libclang-rt-14-dev python3)
 # ===========================================================================
 
 set(parallel_jobs 2)
