@@ -11,6 +11,7 @@
 //   depth_experiment [table.md] [metropolis iterations, default 40]
 #include <chrono>
 #include <cstdio>
+#include <filesystem>
 #include <fstream>
 #include <iostream>
 #include <sstream>
@@ -43,6 +44,12 @@ int main(int argc, char** argv)
     retainFreedMemory();  // core/allocator.hpp
     const std::string tablePath = argc > 1 ? argv[1] : "";
     const Index iterations = argc > 2 ? std::stol(argv[2]) : 40;
+    // Checked before the 8-minute run, not after it.
+    const std::filesystem::path folder = std::filesystem::path(tablePath).parent_path();
+    if (!folder.empty() && !std::filesystem::is_directory(folder)) {
+        std::cerr << "depth_experiment: folder '" << folder.string() << "' does not exist\n";
+        return 2;
+    }
     const test_functions::Sample train = siFront(10000, 1), test = siFront(20000, 2);
     const Index residualLayers = 4;
 
@@ -131,6 +138,10 @@ int main(int argc, char** argv)
                "penalty 1e-3, the best held-out epoch kept); fit seeds 1-3 on the same data. The shallow network "
                "has as many parameter rows as the deep one's input and state rows together.\n\n"
             << tuned.str();
+        if (!out.good()) {
+            std::cerr << "depth_experiment: could not write " << tablePath << '\n';
+            return 1;
+        }
     }
     return 0;
 }
