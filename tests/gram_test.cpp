@@ -1,6 +1,9 @@
 // Tests of the Gram assembly (solve/gram.hpp) and its kernel (detail/gram_kernel.hpp).
 #include <doctest/doctest.h>
 
+#include <algorithm>
+#include <cmath>
+
 #include <wavestack/core/random.hpp>
 #include <wavestack/parallel/reduction.hpp>
 #include <wavestack/solve/gram.hpp>
