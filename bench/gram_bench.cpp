@@ -46,6 +46,13 @@ Matrix randomFeatures(Index n, Index p)
     return phi;
 }
 
+/// GFLOP/s of forming the lower triangle of Phi^T Phi, N x P x (P + 1) flops per iteration.
+void reportGramRate(benchmark::State& state, Index n, Index p)
+{
+    const double flops = double(n) * double(p) * double(p + 1);
+    state.counters["GFLOP/s"] = benchmark::Counter(flops * 1e-9, benchmark::Counter::kIsIterationInvariantRate);
+}
+
 template <class Reduction>
 void gramAssembly(benchmark::State& state, Reduction reduction)
 {
@@ -58,8 +65,7 @@ void gramAssembly(benchmark::State& state, Reduction reduction)
         assembler.assemble(phi, r, 1.0 / double(n), gram, rhs);
         benchmark::DoNotOptimize(gram.data());
     }
-    const double flops = double(n) * double(p) * double(p + 1);
-    state.counters["GFLOP/s"] = benchmark::Counter(flops * 1e-9, benchmark::Counter::kIsIterationInvariantRate);
+    reportGramRate(state, n, p);
     state.counters["threads"] = double(reduction.workers());
 }
 
@@ -75,8 +81,7 @@ void gramEigenRankUpdate(benchmark::State& state)
         gram.selfadjointView<Eigen::Lower>().rankUpdate(phi.transpose(), 1.0);
         benchmark::DoNotOptimize(gram.data());
     }
-    const double flops = double(n) * double(p) * double(p + 1);
-    state.counters["GFLOP/s"] = benchmark::Counter(flops * 1e-9, benchmark::Counter::kIsIterationInvariantRate);
+    reportGramRate(state, n, p);
 }
 
 void gramSerial(benchmark::State& state) { gramAssembly(state, SerialReduction()); }
