@@ -142,6 +142,7 @@ int main(int argc, char** argv)
             const tf::Sample train = tf::drawSample(c.domain, n, trainRandom, c.f);
             if (!dataDir.empty())
                 writeCsv(fmt::format("{}/{}_train_{}.csv", dataDir, c.name, n), train);
+            const double target = n <= 1000 ? c.target1000 : c.target10000;
             std::vector<double> errors;
             for (std::uint64_t fitSeed : seeds) {
                 AutoFitOptions options;
@@ -169,7 +170,6 @@ int main(int argc, char** argv)
                                                    : settings.substr(at + key.size() + 3,
                                                                      settings.find('\n', at) - at - key.size() - 3);
                 };
-                const double target = n <= 1000 ? c.target1000 : c.target10000;
                 const std::string row = fmt::format(
                     "| {} ({}) | {} | {:.2e} | {:.2e} | {:.2g}x{} | {:.2e} | {:.6f} | {:.1f} | {:.0f} | "
                     "{} x {}, {}, stddev {}, lambda {} |",
@@ -190,7 +190,6 @@ int main(int argc, char** argv)
                     each += fmt::format("{}{:.2e}", each.empty() ? "" : ", ", e);
                 }
                 const double mean = std::exp(logSum / double(errors.size()));
-                const double target = n <= 1000 ? c.target1000 : c.target10000;
                 seedRows.push_back(fmt::format("| {} ({}) | {} | {} | {:.2e} | {:.2g}x{} |", c.name,
                                                c.domain.dimension(), n, each, mean, mean / target,
                                                mean <= target ? " (met)" : ""));
