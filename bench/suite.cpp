@@ -11,6 +11,7 @@
 
 #include <chrono>
 #include <cstdio>
+#include <filesystem>
 #include <fstream>
 #include <functional>
 #include <string>
@@ -124,6 +125,12 @@ int main(int argc, char** argv)
     bool metropolis = false;
     app.add_flag("--metropolis", metropolis, "Sample with the Metropolis chain instead of the Gaussian default");
     CLI11_PARSE(app, argc, argv);
+    // Checked before the runs (up to half an hour with several seeds), not after them.
+    const std::filesystem::path folder = std::filesystem::path(out).parent_path();
+    if (!folder.empty() && !std::filesystem::is_directory(folder)) {
+        std::fprintf(stderr, "suite: folder '%s' for --out does not exist\n", folder.string().c_str());
+        return 2;
+    }
 
     std::vector<std::string> rows, seedRows;
     const std::vector<Case> all = cases();
@@ -219,6 +226,11 @@ int main(int argc, char** argv)
              << "| case (d) | N | rel. RMSE per seed | geometric mean | ratio |\n|---|---|---|---|---|\n";
         for (const auto& row : seedRows)
             file << row << "\n";
+    }
+    file.flush();
+    if (!file.good()) {
+        std::fprintf(stderr, "suite: could not write %s\n", out.c_str());
+        return 1;
     }
     return 0;
 }
