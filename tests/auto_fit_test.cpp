@@ -62,7 +62,7 @@ TEST_CASE("settings given by the caller are kept, not chosen")
     automatic.frequencyStddev = 0.5;
     automatic.features = FeatureMix::fourier;
     const Network network = autoFit(train.x, train.y, automatic);
-    CHECK(network.layers().front().width() == 24);
+    CHECK(network.layers().front().groups.front().width() == 24);
     CHECK(network.residualLayerCount() <= 1);
     const std::string& settings = network.record().settings;
     CHECK(settings.find("lambda = 1e-06") != std::string::npos);

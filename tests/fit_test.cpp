@@ -98,6 +98,39 @@ TEST_CASE("a sum of known Fourier modes is recovered to machine precision from i
     CHECK(deviation * b(3, 0) == doctest::Approx(0.2).epsilon(1e-12));
 }
 
+TEST_CASE("every layer carries a constant term, so one exact ridge row fits a front off the data's mean")
+{
+    // y = tanh((v . u - 0.3) / 0.05) is one ridge row, but its mean over the
+    // box is not 0, so after standardising the target is a * tanh(...) + c.
+    // With the layer's constant term that is exact (common practice:
+    // ridge regression with an intercept, Hastie, Tibshirani & Friedman,
+    // The Elements of Statistical Learning, 2nd ed., section 3.4.1); without
+    // it the single row has nothing to carry c.
+    Vector v(3);
+    v << 2.0, -1.0, 0.5;
+    v.normalize();
+    auto target = [&](const Matrix& x) {
+        return Matrix(((x * v).array() - 0.3).unaryExpr([](double a) { return std::tanh(a / 0.05); }));
+    };
+    const Matrix x = uniformInputs(1000, 3, 21), xTest = uniformInputs(4000, 3, 22);
+    const Matrix y = target(x), yTest = target(xTest);
+    Matrix row(1, 4);
+    row << v.transpose() / 0.05, -0.3 / 0.05;
+    FitOptions options;
+    options.width = 1;
+    options.lambda = 1e-14;
+    options.features = FeatureMix::ridge;
+    options.inputBox = InputBox{Vector::Constant(3, -1.0), Vector::Constant(3, 1.0)};  // u = x
+    const Network net = fit(x, y, options, FixedSampler(row));
+    const double maxError = (net.evaluateBatch(xTest) - yTest).cwiseAbs().maxCoeff();
+    MESSAGE("exact ridge row plus the constant term: max abs error " << maxError);
+    CHECK(maxError < 1e-9);
+    const FeatureGroup& constant = net.layer().groups.back();
+    CHECK(constant.kind == FeatureKind::ridge);
+    CHECK(constant.width() == 1);
+    CHECK(constant.parameters.leftCols(3).isZero(0.0));
+}
+
 TEST_CASE("several outputs are fitted together")
 {
     const Matrix x = uniformInputs(800, 2, 9);

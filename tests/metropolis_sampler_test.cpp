@@ -79,6 +79,10 @@ TEST_CASE("on the regularised discontinuity the chain beats Gaussian sampling at
     options.frequencyStddev = GaussianSampler::defaultStddev;
     options.sampler = SamplerKind::metropolis;
     options.validationFraction = 0.2;
+    // The chain as Kammonen et al. specify it. The default resampling step is
+    // neutral on this target (held-out 0.30-0.31 against 0.28-0.31 over data
+    // seeds 3/5/9) and pays on narrow spectra and fronts (tests below).
+    options.metropolis.resample = false;
     const double metropolis = heldOutRelativeRmse(fit(train.x, train.y, options), test);
     MESSAGE("Si-front d = 3, K = 256: Metropolis " << metropolis << ", best Gaussian " << bestGaussian
                                                    << ", ratio " << bestGaussian / metropolis);
@@ -100,20 +104,23 @@ TEST_CASE("ridge features driven by the same chain resolve an oblique front that
     options.width = 32;
     options.sampler = SamplerKind::metropolis;
     options.validationFraction = 0.2;
-    options.metropolis.iterations = 2000;
-    options.metropolis.maxStep = 0.5;  // a ridge row's direction needs steps well below |w| ~ 20
+    options.metropolis.iterations = 1000;
+    options.metropolis.maxStep = 0.2;  // a ridge row's direction needs steps well below |w| ~ 20
     options.features = FeatureMix::ridge;
     const double ridge = heldOutRelativeRmse(fit(train.x, train.y, options), test);
+    options.metropolis.resample = false;
+    const double withoutResampling = heldOutRelativeRmse(fit(train.x, train.y, options), test);
+    options.metropolis.resample = true;
     options.features = FeatureMix::fourier;
     const double fourier = heldOutRelativeRmse(fit(train.x, train.y, options), test);
-    MESSAGE("oblique front, K = 32: ridge " << ridge << ", Fourier " << fourier << ", ratio " << fourier / ridge);
-    // Measured here: ridge 0.097 vs Fourier 0.173; on three other data seeds
-    // ridge 0.037-0.060 vs Fourier 0.19-0.21. The goal of 0.02 and 3x is not
-    // reached yet: with K = 32 the per-row acceptance test sees amplitude
-    // norms of a jointly solved, nearly collinear set, which are noisy
-    // (acceptance stays near 0.5 for steps from 0.2 to 10). See DEVELOPERS.md.
-    CHECK(ridge < 0.12);
-    CHECK(fourier / ridge >= 1.5);
+    MESSAGE("oblique front, K = 32: ridge " << ridge << " (without resampling " << withoutResampling << "), Fourier "
+                                            << fourier << ", ratio " << fourier / ridge);
+    CHECK(ridge < 0.02);
+    CHECK(fourier / ridge >= 3.0);
+    // The chain alone leaves rows on the front only by chance: the per-row
+    // test reads noisy amplitude norms of a nearly collinear set. Resampling
+    // multiplies the rows that carry the fit (DEVELOPERS.md, "Defaults").
+    CHECK(withoutResampling > 3.0 * ridge);
 }
 
 TEST_CASE("a layer of both maps, driven by one chain, is at least as good as either map alone")
@@ -140,6 +147,40 @@ TEST_CASE("a layer of both maps, driven by one chain, is at least as good as eit
     }
     MESSAGE("front + smooth, K = 64: Fourier " << error[0] << ", ridge " << error[1] << ", both " << error[2]);
     CHECK(error[2] <= 1.1 * std::min(error[0], error[1]));
+}
+
+TEST_CASE("after burn-in the acceptance rate lies in a band around the target")
+{
+    // delta adapts during burn-in toward targetAcceptance (0.3) and is fixed
+    // after; band 0.3 +- 0.15 (common practice for random-walk Metropolis).
+    // Where the step cap binds the rate stays above the target instead, so
+    // the check also asks that the cap did not bind.
+    auto target = [](const auto& u) { return std::sin(3.0 * u[0]) * std::cos(2.0 * u[1]) + std::tanh(8.0 * u[2]); };
+    const Data train = uniformSample(3000, 3, 5, target);
+    FitOptions options = unitBoxOptions(3);
+    options.width = 40;
+    options.sampler = SamplerKind::metropolis;
+    options.metropolis.iterations = 200;
+    options.metropolis.maxStep = 10.0;
+    options.validationFraction = 0.2;
+    const Index burnIn = 50;  // burnInFraction 0.25 of 200
+    double sum = 0.0, finalStep = 0.0;
+    Index count = 0;
+    options.progress = [&](const FitProgress& p) {
+        if (p.stage == "sampling" && p.layer == 0 && p.sampler.iteration > burnIn) {
+            sum += p.sampler.acceptanceRate;
+            finalStep = p.sampler.step;
+            ++count;
+        }
+        return true;
+    };
+    options.layers = 0;
+    fit(train.x, train.y, options);
+    REQUIRE(count == 150);
+    MESSAGE("mean acceptance after burn-in " << sum / double(count) << ", step " << finalStep);
+    CHECK(sum / double(count) > 0.15);
+    CHECK(sum / double(count) < 0.45);
+    CHECK(finalStep < 10.0);
 }
 
 TEST_CASE("the same seed gives a bit-identical model for one and two threads")

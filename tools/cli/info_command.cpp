@@ -65,9 +65,14 @@ int runInfo(const InfoCommand& command)
                network.stateInput() == StateInput::runningPrediction ? "running prediction" : "residual state");
     for (std::size_t l = 0; l < network.layers().size(); ++l) {
         std::vector<std::string> groups;
-        for (const auto& group : network.layers()[l].groups)
-            groups.push_back(fmt::format("{} {} on the {}", group.width(), kindName(group.kind),
-                                         group.source == FeatureSource::input ? "inputs" : "state"));
+        for (const auto& group : network.layers()[l].groups) {
+            const Index d = group.parameters.cols() - 1;
+            if (group.kind == FeatureKind::ridge && group.width() == 1 && group.parameters.leftCols(d).isZero(0.0))
+                groups.push_back("constant term");  // see LayerProblem::interceptGroup
+            else
+                groups.push_back(fmt::format("{} {} on the {}", group.width(), kindName(group.kind),
+                                             group.source == FeatureSource::input ? "inputs" : "state"));
+        }
         fmt::print("  layer {}: {}\n", l, fmt::join(groups, ", "));
     }
     fmt::print("parameters:  {} ({} parameter rows)\n", parameterCount(network), network.width());

@@ -201,7 +201,8 @@ std::string describeSettings(const FitOptions& options, Index stateWidth, const 
          << options.validationFraction << "\nseed = " << options.seed << "\n";
     if (std::is_same_v<Sampler, MetropolisSampler>)
         text << "metropolis iterations = " << options.metropolis.iterations << "\nmetropolis lambda = "
-             << options.metropolis.lambda << "\nmetropolis step cap = " << options.metropolis.maxStep << "\n";
+             << options.metropolis.lambda << "\nmetropolis step cap = " << options.metropolis.maxStep
+             << "\nmetropolis resampling = " << (options.metropolis.resample ? "on" : "off") << "\n";
     return text.str();
 }
 
@@ -328,6 +329,7 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
                              prediction ? Matrix(heldInitial + heldResidual) : heldResidual);
             shapes.push_back(GroupShape{FeatureKind::fourier, stateWidth, FeatureSource::state});
         }
+        problem.setIntercept(true);
         problem.setProgress([&](const SamplerProgress& s) {
             report(FitProgress{"sampling", l, 0.0, s, s.trainingRmse, s.validationRmse, TuneProgress()});
             return true;
@@ -347,6 +349,8 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
         target += fitted;
         if (held > 0)
             (l == 0 ? heldInitial : heldResidual) += problem.validationFitted(layer.groups);
+        if (problem.hasIntercept())
+            layer.groups.push_back(problem.interceptGroup());
         trainingError = error;
         layers.push_back(std::move(layer));
         const double heldError = rmse(heldY - heldInitial - heldResidual);

@@ -69,6 +69,20 @@ public:
         m_validationState = std::move(validationState);
     }
 
+    /// With `on`, every solve adds interceptGroup()'s constant column after
+    /// the sampled groups' columns; samplers never see or move it.
+    void setIntercept(bool on) { m_intercept = on; }
+    bool hasIntercept() const { return m_intercept; }
+
+    /// A ridge row with zero slopes: tanh(0 . u + 1), the same value at every
+    /// point, so its amplitude is the layer's constant term.
+    FeatureGroup interceptGroup() const
+    {
+        Matrix parameters = Matrix::Zero(1, inputCount() + 1);
+        parameters(0, inputCount()) = 1.0;
+        return FeatureGroup{FeatureKind::ridge, std::move(parameters), FeatureSource::input};
+    }
+
     /// Called by samplers after every iteration; returning false cancels.
     void setProgress(Progress progress) { m_progress = std::move(progress); }
 
@@ -145,12 +159,15 @@ private:
         Index count = 0;
         for (const auto& group : groups)
             count += group.featureCount();
-        features.resize(inputs.rows(), count);  // no reallocation when the shape repeats
+        features.resize(inputs.rows(), count + (m_intercept ? 1 : 0));  // no reallocation when the shape repeats
+        const FeatureGroup constant = interceptGroup();
         const RowBlocks blocks(inputs.rows(), 256, 64);
         m_solver.reduction().run(blocks.count, [&](Index b) {
             const Index begin = blocks.begin(b), size = blocks.size(b);
-            layerFeatures(groups, inputs.middleRows(begin, size), state.middleRows(begin, size),
-                          features.middleRows(begin, size));
+            auto rows = features.middleRows(begin, size);
+            layerFeatures(groups, inputs.middleRows(begin, size), state.middleRows(begin, size), rows.leftCols(count));
+            if (m_intercept)
+                constant.features(inputs.middleRows(begin, size), rows.rightCols(1));
         });
     }
 
@@ -163,6 +180,7 @@ private:
     Matrix m_validationTargets;
     Matrix m_validationState;
     Progress m_progress;
+    bool m_intercept = false;
 
     Matrix m_features;
     Matrix m_amplitudes;
