@@ -185,7 +185,7 @@ TEST_CASE("on a sharp front autoFit keeps the compact Adam-tuned network when it
     MESSAGE("oblique front, N = 1 000: automatic " << error(chosen) << ", layer by layer only " << error(layered));
     CHECK(chosen.record().settings.find("compact network tuned by Adam") != std::string::npos);
     CHECK(layered.record().settings.find("compact network") == std::string::npos);
-    // Measured: 0.073 against 0.091 on these 4 000 new points (the held-out
+    // Measured: 0.0082 against 0.086 on these 4 000 new points (the held-out
     // rows chose it; at N = 10 000 on the 3-D Si-front the gain is 1.6-4x).
-    CHECK(error(chosen) < 0.9 * error(layered));
+    CHECK(error(chosen) < 0.3 * error(layered));
 }
