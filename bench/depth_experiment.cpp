@@ -129,12 +129,12 @@ int main(int argc, char** argv)
         out << "Held-out relative RMSE (RMSE / std of 20 000 test values) on Si(x_1/0.01) exp(-|x|^2/2), "
                "x ~ N(0, I_3), N = 10 000 (20 % held out inside fit), Metropolis sampling ("
             << iterations
-            << " iterations per layer), lambda 1e-5, 2 threads. Total width counts the input rows of all layers "
+            << " iterations per layer, rows resampled by amplitude), lambda 1e-5, 2 threads. Total width counts the input rows of all layers "
                "(shallow width = (L + 1) K); each residual layer also has a state group of K / 4 Fourier rows. "
                "Produced by bench/depth_experiment.cpp.\n\n"
             << table.str()
             << "\nAfter global tuning by Adam: the compact shape autoFit tries on fronts (Fourier + ridge, "
-               "Metropolis 30 iterations, lambda 1e-5), then Adam for 1 000 epochs (batch 128, rates 2e-3, amplitude "
+               "Metropolis 30 iterations, step cap 0.3, lambda 1e-5), then Adam for 1 000 epochs (batch 128, rates 2e-3, amplitude "
                "penalty 1e-3, the best held-out epoch kept); fit seeds 1-3 on the same data. The shallow network "
                "has as many parameter rows as the deep one's input and state rows together.\n\n"
             << tuned.str();

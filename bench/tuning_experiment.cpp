@@ -171,7 +171,8 @@ int main(int argc, char** argv)
     std::ostringstream text;
     text << "Si(x_1/0.01) exp(-|x|^2/2), x ~ N(0, I_d), N = 10 000 (20 % held out inside fit), 20 000 test "
             "points. Shape: initial layer + 4 residual layers, 128 input rows per layer (64 Fourier + 64 ridge) and "
-            "32 Fourier state rows per residual layer; Metropolis sampling 30 iterations per layer, lambda 1e-5; Adam "
+            "32 Fourier state rows per residual layer; Metropolis sampling 30 iterations per layer (step cap 0.3, "
+            "rows resampled by amplitude), lambda 1e-5; Adam "
          << epochs
          << " epochs (the whole schedule, no early stop; the best held-out epoch is kept), batch 128, rates 2e-3, "
             "amplitude penalty 1e-3 after layer-by-layer training (autoFit's compact network, "
