@@ -349,8 +349,7 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
         target += fitted;
         if (held > 0)
             (l == 0 ? heldInitial : heldResidual) += problem.validationFitted(layer.groups);
-        if (problem.hasIntercept())
-            layer.groups.push_back(problem.interceptGroup());
+        layer.groups.push_back(problem.interceptGroup());  // after the held-out fit, which adds it itself
         trainingError = error;
         layers.push_back(std::move(layer));
         const double heldError = rmse(heldY - heldInitial - heldResidual);

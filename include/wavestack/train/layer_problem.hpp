@@ -49,8 +49,10 @@ public:
     /// inputs: N x d scaled; targets: N x m (standardised residuals).
     LayerProblem(Matrix inputs, Matrix targets, double lambda, Solver solver = Solver())
         : m_inputs(std::move(inputs)), m_targets(std::move(targets)), m_lambda(lambda), m_solver(std::move(solver)),
-          m_state(m_inputs.rows(), 0)  // no state until setState: the initial layer reads inputs only
+          m_state(m_inputs.rows(), 0),  // no state until setState: the initial layer reads inputs only
+          m_interceptGroup{FeatureKind::ridge, Matrix::Zero(1, m_inputs.cols() + 1), FeatureSource::input}
     {
+        m_interceptGroup.parameters(0, m_inputs.cols()) = 1.0;
     }
 
     /// Held-out rows that choose between snapshots; never used in a solve.
@@ -76,12 +78,7 @@ public:
 
     /// A ridge row with zero slopes: tanh(0 . u + 1), the same value at every
     /// point, so its amplitude is the layer's constant term.
-    FeatureGroup interceptGroup() const
-    {
-        Matrix parameters = Matrix::Zero(1, inputCount() + 1);
-        parameters(0, inputCount()) = 1.0;
-        return FeatureGroup{FeatureKind::ridge, std::move(parameters), FeatureSource::input};
-    }
+    const FeatureGroup& interceptGroup() const { return m_interceptGroup; }
 
     /// Called by samplers after every iteration; returning false cancels.
     void setProgress(Progress progress) { m_progress = std::move(progress); }
@@ -160,14 +157,13 @@ private:
         for (const auto& group : groups)
             count += group.featureCount();
         features.resize(inputs.rows(), count + (m_intercept ? 1 : 0));  // no reallocation when the shape repeats
-        const FeatureGroup constant = interceptGroup();
         const RowBlocks blocks(inputs.rows(), 256, 64);
         m_solver.reduction().run(blocks.count, [&](Index b) {
             const Index begin = blocks.begin(b), size = blocks.size(b);
             auto rows = features.middleRows(begin, size);
             layerFeatures(groups, inputs.middleRows(begin, size), state.middleRows(begin, size), rows.leftCols(count));
             if (m_intercept)
-                constant.features(inputs.middleRows(begin, size), rows.rightCols(1));
+                m_interceptGroup.features(inputs.middleRows(begin, size), rows.rightCols(1));
         });
     }
 
@@ -180,6 +176,7 @@ private:
     Matrix m_validationTargets;
     Matrix m_validationState;
     Progress m_progress;
+    FeatureGroup m_interceptGroup;
     bool m_intercept = false;
 
     Matrix m_features;
