@@ -87,8 +87,9 @@ void gramEigenRankUpdate(benchmark::State& state)
 void gramSerial(benchmark::State& state) { gramAssembly(state, SerialReduction()); }
 void gramTwoThreads(benchmark::State& state) { gramAssembly(state, ThreadReduction(2)); }
 
-/// Seconds per Metropolis iteration (two solves of N = 8 000 training rows
-/// plus a held-out evaluation of 2 000 rows) on the Si-front in d = 3.
+/// Seconds per Metropolis iteration (three solves of N = 8 000 training
+/// rows: the proposal, the accepted set and the resampled set; plus a
+/// held-out evaluation of 2 000 rows) on the Si-front in d = 3.
 void metropolisIteration(benchmark::State& state)
 {
     const Index k = state.range(0), threads = state.range(1);
