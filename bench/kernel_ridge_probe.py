@@ -5,10 +5,11 @@
     python3 bench/kernel_ridge_probe.py DIR [--cases borehole,ishigami] [--out FILE]
 
 For every case it scales the inputs to [-1, 1] on the training box and standardises
-the target, as the library does, then chooses per-input length scales by the same
-pattern search as autoFit step 3 (train/auto_fit.hpp: x 1/4 and 4, then 1/2 and 2,
-then 1/sqrt 2 and sqrt 2, keep the better where it lowers the score by 1 %, at most 3
-passes per step here) and lambda from the same grid, each scored by leave-one-out
+the target, as the library does, then chooses per-input length scales by a pattern
+search like autoFit step 3 (train/auto_fit.hpp: x 1/4 and 4, then 1/2 and 2, then
+1/sqrt 2 and sqrt 2, where the search keeps a step that lowers the score by 1 %;
+here both directions are scored and the better kept, at most 3 passes per step) and
+lambda from autoFit's grid extended down to 1e-20, each scored by leave-one-out
 error on every training row. The model is kernel ridge regression with the Gaussian
 kernel exp(-|(u - v) / l|^2 / 2), the kernel Gaussian random Fourier features sample
 (Rahimi & Recht 2007), solved exactly with every training row as a centre: the
