@@ -1,35 +1,103 @@
 #pragma once
 /// \file
-/// A trained network converted to single precision for speed: twice the
-/// SIMD lanes of double. Parameters are rounded to float once; expect
-/// output errors of a few 1e-7 of the output scale times the number of
-/// terms summed, and angle errors of about 6e-8 |w . x| (large frequencies
-/// times large inputs lose the most). Check the float model against your
-/// tolerance before using it.
+/// A trained network evaluated in single precision for speed (twice the SIMD
+/// lanes of double), when single precision is accurate enough for it.
+///
+/// Float rounding of a parameter or a sum costs about 6e-8 of its size, so
+/// the error it adds grows with the amplitudes and frequencies: small for a
+/// model fitted with a moderate lambda, but a model whose ridge lambda was
+/// 1e-16 or below can carry amplitudes of 2e3-7e4 that cancel to an output
+/// of order 1, and in float it lost up to 1 000x in accuracy (borehole,
+/// N = 1 000: test relative RMSE 4.1e-4 in double, 3.2e-2 in float;
+/// DEVELOPERS.md). So the constructor measures what float costs this model
+/// and evaluates in double, converting inputs and outputs, when the cost is
+/// more than a quarter of the error the model already has.
 
+#include <array>
 #include <string>
+#include <vector>
 
 #include "wavestack/core/error.hpp"
+#include "wavestack/core/random.hpp"
 #include "wavestack/core/types.hpp"
 #include "wavestack/model/evaluator.hpp"
 #include "wavestack/model/network.hpp"
 
 namespace wavestack {
 
+/// The float-vs-double RMS difference FloatNetwork accepts, as a share of
+/// the model's held-out RMSE (per output). A quarter keeps the total error
+/// within sqrt(1 + 0.25^2) = 1.03x of double's when the two are independent.
+constexpr double floatErrorShare = 0.25;
+
+/// Points FloatNetwork compares float and double on: uniform in the training
+/// box (the input scaler's box for a model without a recorded domain).
+constexpr Index floatCheckPoints = 1024;
+
+/// Inputs evaluate(x, y) converts on the stack when it evaluates in double;
+/// more are converted through the heap.
+constexpr Index maxStackInputs = 64;
+
 class FloatNetwork {
 public:
     using MatrixF = Eigen::MatrixXf;
 
     explicit FloatNetwork(const Network& network)
-        : m_evaluator(network.inputScaler(), network.outputScaler(), network.layers(), network.stateInput())
+        : m_single(network.inputScaler(), network.outputScaler(), network.layers(), network.stateInput()),
+          m_double(network.evaluator())
     {
+        const Index d = network.inputCount(), m = network.outputCount();
+        const bool hasDomain = !network.domain().empty();
+        const Vector lower = hasDomain ? network.domain().lower() : network.inputScaler().box().lower;
+        const Vector upper = hasDomain ? network.domain().upper() : network.inputScaler().box().upper;
+        Random random(20261205);  // fixed: the same model always makes the same choice
+        Matrix x(floatCheckPoints, d);
+        for (Index i = 0; i < x.rows(); ++i)
+            for (Index j = 0; j < d; ++j)
+                x(i, j) = lower[j] + (upper[j] - lower[j]) * random.uniform();
+        const Matrix reference = m_double.evaluateBatch(x);
+        const Matrix rounded = m_single.evaluateBatch(x.cast<float>()).cast<double>();
+        m_deviation = ((rounded - reference).array().square().colwise().mean().sqrt()).transpose();
+
+        // Without held-out metrics there is no error to compare against:
+        // float stays, as it did before the check existed.
+        const auto& heldOut = network.record().heldOutMetrics;
+        m_useSingle = true;
+        if (Index(heldOut.size()) == m)
+            for (Index o = 0; o < m; ++o)
+                if (!(m_deviation[o] <= floatErrorShare * heldOut[std::size_t(o)].rmse))
+                    m_useSingle = false;
     }
 
-    Index inputCount() const { return m_evaluator.inputCount(); }
-    Index outputCount() const { return m_evaluator.outputCount(); }
+    Index inputCount() const { return m_single.inputCount(); }
+    Index outputCount() const { return m_single.outputCount(); }
 
-    /// One point; no checks, no allocation up to maxStackOutputs outputs.
-    void evaluate(const float* x, float* y) const { m_evaluator.evaluate(x, y); }
+    /// True when evaluation runs in float; false when float rounding would
+    /// add more than floatErrorShare of the held-out RMSE and it runs in double.
+    bool single() const { return m_useSingle; }
+
+    /// Per output, the RMS difference of float from double evaluation on
+    /// floatCheckPoints points of the training box (output units).
+    const Vector& floatDeviation() const { return m_deviation; }
+
+    /// One point; no checks, no allocation up to maxStackOutputs outputs and
+    /// maxStackInputs inputs.
+    void evaluate(const float* x, float* y) const
+    {
+        if (m_useSingle) {
+            m_single.evaluate(x, y);
+            return;
+        }
+        const Index d = inputCount(), m = outputCount();
+        if (d <= maxStackInputs && m <= maxStackOutputs) {
+            std::array<double, maxStackInputs> in;
+            std::array<double, maxStackOutputs> out;
+            evaluateInDouble(x, y, in.data(), out.data());
+        } else {
+            std::vector<double> in(static_cast<std::size_t>(d)), out(static_cast<std::size_t>(m));
+            evaluateInDouble(x, y, in.data(), out.data());
+        }
+    }
 
     /// A batch, rows = points; returns N x outputCount().
     MatrixF evaluateBatch(const Eigen::Ref<const MatrixF>& inputs) const
@@ -37,11 +105,25 @@ public:
         if (inputs.cols() != inputCount())
             throw InvalidInput("FloatNetwork::evaluateBatch: the inputs have " + std::to_string(inputs.cols()) +
                                " columns but the network has " + std::to_string(inputCount()) + " inputs");
-        return m_evaluator.evaluateBatch(inputs);
+        if (m_useSingle)
+            return m_single.evaluateBatch(inputs);
+        return m_double.evaluateBatch(inputs.cast<double>()).cast<float>();
     }
 
 private:
-    Evaluator<float> m_evaluator;
+    void evaluateInDouble(const float* x, float* y, double* in, double* out) const
+    {
+        for (Index j = 0; j < inputCount(); ++j)
+            in[j] = double(x[j]);
+        m_double.evaluate(in, out);
+        for (Index o = 0; o < outputCount(); ++o)
+            y[o] = float(out[o]);
+    }
+
+    Evaluator<float> m_single;
+    Evaluator<double> m_double;
+    Vector m_deviation;
+    bool m_useSingle = true;
 };
 
 }  // namespace wavestack
