@@ -189,3 +189,29 @@ TEST_CASE("on a sharp front autoFit keeps the compact Adam-tuned network when it
     // rows chose it; at N = 10 000 on the 3-D Si-front the gain is 1.6-4x).
     CHECK(error(chosen) < 0.3 * error(layered));
 }
+
+TEST_CASE("on a smooth target with few rows autoFit chooses lambdas below the Gram matrix's resolution")
+{
+    // Friedman #1 (Friedman 1991; 5 active and 5 inert inputs; formula checked
+    // against numpy in tests/reference/test_functions_reference.py), N = 1 000.
+    // Scored through the Gram matrix, the search could offer lambda no lower
+    // than 1e-14: on the suite's data the four fit seeds gave test relative
+    // RMSE 9.1e-6 to 2.5e-5; through the features' singular values, with
+    // lambdas down to 1e-20, 6.5e-7 to 1.6e-6 (DEVELOPERS.md, "Defaults").
+    // The suite's target, a Gaussian process (scikit-learn 1.2), is 4.6e-5.
+    Random random(31);
+    const tf::Sample train = tf::drawSample(tf::friedman1Domain(), 1000, random, tf::friedman1);
+    const tf::Sample test = tf::drawSample(tf::friedman1Domain(), 20000, random, tf::friedman1);
+    AutoFitOptions automatic;
+    automatic.seed = 1;
+    automatic.threads = 2;
+    const Network network = autoFit(train.x, train.y, automatic);
+    const std::string& settings = network.record().settings;
+    const auto at = settings.find("\nlambda = ");
+    REQUIRE(at != std::string::npos);
+    const double lambda = std::stod(settings.substr(at + 10));
+    const double error = testError(network, test);
+    MESSAGE("Friedman #1, N = 1 000: lambda " << lambda << ", test relative RMSE " << error);
+    CHECK(lambda < 1e-14);
+    CHECK(error < 4e-6);
+}

@@ -51,7 +51,7 @@ double leaveOneOutError(const test_functions::Sample& data, const FitOptions& op
         GaussianSampler(stddev).sample(Shape{u.cols()}, {{FeatureKind::fourier, options.width}}, random);
     Matrix phi(u.rows(), 2 * options.width);
     layerFeatures(groups, u, Matrix(u.rows(), 0), phi);
-    return RidgeLeaveOneOut<>()
+    return RidgeLeaveOneOut()
         .errors(phi, OutputScaler::fromData(data.y).apply(data.y), {options.lambda})
         .front()
         .relativeRmse;

@@ -8,8 +8,9 @@
 ///      number of training rows (autoWidth, autoStateWidth);
 ///   2. the frequency spread, over frequencyStddevGrid() (shallow trials);
 ///   3. a spread per input (anisotropy, like a kernel with one length scale
-///      per input): a pattern search that multiplies one input's spread by
-///      step or 1/step where that lowers the trial error by 1 %, in passes
+///      per input): a pattern search that scores one input's spread times
+///      step and times 1/step side by side and keeps the better where it
+///      lowers the trial error by 1 %, in passes
 ///      until none changes (at most autoScalePasses), with step 4, then 2,
 ///      then sqrt 2; then the common spread once more (shallow trials);
 ///   4. the feature mix: Fourier alone or Fourier + ridge (shallow trials);
@@ -90,10 +91,12 @@ constexpr Index autoRefitRows = 4000;
 /// 1e-12 and from 1e-4 up, where smooth and noisy-looking targets choose, of
 /// 100 between. The smooth suite cases at N = 1 000 choose 1e-13 or 1e-14
 /// when offered (4-seed geometric means 1.1-2.6x lower error than with
-/// 1e-12 as the smallest; DEVELOPERS.md, "Defaults").
+/// 1e-12 as the smallest; DEVELOPERS.md, "Defaults"). Lambdas below 1e-14
+/// can be scored because the leave-one-out errors come from the features'
+/// singular values, not from the Gram matrix (solve/ridge_loo.hpp).
 inline std::vector<double> autoLambdaGrid()
 {
-    return {1e-14, 1e-13, 1e-12, 1e-10, 1e-8, 1e-6, 1e-4, 1e-3, 1e-2, 1e-1, 1.0};
+    return {1e-20, 1e-18, 1e-16, 1e-14, 1e-13, 1e-12, 1e-10, 1e-8, 1e-6, 1e-4, 1e-3, 1e-2, 1e-1, 1.0};
 }
 
 /// Parameter rows of each residual layer's state group for `trainingRows`
@@ -248,8 +251,13 @@ inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, cons
     FitOptions trialOptions = options;
     trialOptions.width = std::min<Index>({options.width, std::max<Index>(16, training / 4), autoTrialWidth});
     detail::ShallowTrials trials(inputs, outputs, trialOptions, std::min<Index>(4000, std::max<Index>(training, 2)));
-    if (!automatic.lambda)
-        trials.setLambdas(autoLambdaGrid());
+    if (!automatic.lambda) {
+        std::vector<double> grid = autoLambdaGrid();
+        if (trials.path() == LeaveOneOutPath::gram)  // it cannot score these
+            grid.erase(std::remove_if(grid.begin(), grid.end(), [](double lambda) { return lambda < 1e-14; }),
+                       grid.end());
+        trials.setLambdas(grid);
+    }
     double current = -1.0;  // error of the current trial settings
     if (!automatic.frequencyStddev) {
         options.frequencyStddev = trials.best(
@@ -262,18 +270,21 @@ inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, cons
         for (double step : {4.0, 2.0, std::sqrt(2.0)})
             for (Index pass = 0; pass < autoScalePasses; ++pass) {
                 bool changed = false;
-                for (Index j = 0; j < inputs.cols(); ++j)
-                    for (double factor : {1.0 / step, step}) {
-                        Vector candidate = scales;
-                        candidate[j] *= factor;
-                        trials.settings().inputBox = detail::stretchedBox(dataBox, candidate);
-                        const double error = trials.score();
-                        if (error < autoScaleGain * current) {
-                            current = error;
-                            scales = candidate;
-                            changed = true;
-                        }
+                for (Index j = 0; j < inputs.cols(); ++j) {
+                    // Both directions from the same scales, scored side by side.
+                    std::vector<Vector> candidates(2, scales);
+                    candidates[0][j] /= step;
+                    candidates[1][j] *= step;
+                    const std::vector<double> errors = trials.scores(candidates, [&](FitOptions& o, const Vector& c) {
+                        o.inputBox = detail::stretchedBox(dataBox, c);
+                    });
+                    const std::size_t better = errors[1] < errors[0] ? 1 : 0;
+                    if (errors[better] < autoScaleGain * current) {
+                        current = errors[better];
+                        scales = candidates[better];
+                        changed = true;
                     }
+                }
                 if (!changed)
                     break;
             }
