@@ -307,8 +307,9 @@ class BoreholeEndToEnd(ToolTestCase):
         # "Generation of finite difference formulas on arbitrarily spaced
         # grids"): its truncation error, h^4 / 30 times the fifth derivative,
         # stays below the tolerance for the nearly inert input r, and h is
-        # large enough that the model's rounding noise (amplitudes up to 1e4
-        # cancelling to the output, about 1e-12 of it) does not reach it.
+        # large enough that the model's rounding noise does not reach it (with
+        # lambdas below 1e-14 the amplitudes are large and cancel, and the
+        # second-order difference failed at h = 1e-5 as it did at 1e-4).
         steps = [1e-3 * (hi - lo) for _, lo, hi in BOREHOLE_RANGES]
         offsets = (1.0, -1.0, 2.0, -2.0)
         shifted = []
