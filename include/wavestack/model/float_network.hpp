@@ -6,10 +6,10 @@
 /// Float rounding of a parameter or a sum costs about 6e-8 of its size, so
 /// the error it adds grows with the amplitudes and frequencies: small for a
 /// model fitted with a moderate lambda, but a model whose ridge lambda was
-/// 1e-16 or below can carry amplitudes of 2e3-7e4 that cancel to an output
-/// of order 1, and in float it lost up to 1 000x in accuracy (borehole,
-/// N = 1 000: test relative RMSE 4.1e-4 in double, 3.2e-2 in float;
-/// DEVELOPERS.md). So the constructor measures what float costs this model
+/// 1e-16 or below can carry amplitudes of 1e3-2e5 that cancel to an output
+/// of order 1, and in float such models lost up to 570x in accuracy
+/// (Ishigami, N = 1 000: test relative RMSE 8.5e-4 in double, 4.9e-2 in
+/// float; bench/results/float_choice.md). So the constructor measures what float costs this model
 /// and evaluates in double, converting inputs and outputs, when the cost is
 /// more than a quarter of the error the model already has.
 
