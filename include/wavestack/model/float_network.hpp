@@ -67,10 +67,15 @@ public:
             for (Index o = 0; o < m; ++o)
                 if (!(m_deviation[o] <= floatErrorShare * heldOut[std::size_t(o)].rmse))
                     m_useSingle = false;
+        // Keep only the evaluator in use: the other would double the memory.
+        if (m_useSingle)
+            m_double = Evaluator<double>();
+        else
+            m_single = Evaluator<float>();
     }
 
-    Index inputCount() const { return m_single.inputCount(); }
-    Index outputCount() const { return m_single.outputCount(); }
+    Index inputCount() const { return m_useSingle ? m_single.inputCount() : m_double.inputCount(); }
+    Index outputCount() const { return m_useSingle ? m_single.outputCount() : m_double.outputCount(); }
 
     /// True when evaluation runs in float; false when float rounding would
     /// add more than floatErrorShare of the held-out RMSE and it runs in double.
@@ -90,9 +95,8 @@ public:
         }
         const Index d = inputCount(), m = outputCount();
         if (d <= maxStackInputs && m <= maxStackOutputs) {
-            std::array<double, maxStackInputs> in;
-            std::array<double, maxStackOutputs> out;
-            evaluateInDouble(x, y, in.data(), out.data());
+            std::array<double, maxStackInputs + maxStackOutputs> buffer;  // inputs, then outputs
+            evaluateInDouble(x, y, buffer.data(), buffer.data() + d);
         } else {
             std::vector<double> in(static_cast<std::size_t>(d)), out(static_cast<std::size_t>(m));
             evaluateInDouble(x, y, in.data(), out.data());
