@@ -26,12 +26,9 @@ import argparse
 import numpy as np
 from scipy.linalg import eigh
 
+from compare_baselines import load_csv as load  # same CSV layout, same header check
+
 LAMBDAS = [1e-20, 1e-18, 1e-16, 1e-14, 1e-13, 1e-12, 1e-10, 1e-8, 1e-6, 1e-4, 1e-3, 1e-2, 1e-1, 1.0]
-
-
-def load(path):
-    data = np.loadtxt(path, delimiter=",", skiprows=1, ndmin=2)
-    return data[:, :-1], data[:, -1]
 
 
 def kernel(a, b, lengths):

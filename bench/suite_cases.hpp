@@ -1,9 +1,8 @@
 #pragma once
 // The accuracy suite's cases: standard published test functions, their
-// domains and the targets from general-purpose learners. Shared by
-// bench/suite.cpp and bench/float_choice.cpp, which draw the same data
-// (seed 1000 * (case index + 1) for the test points, that plus N for the
-// training points).
+// domains and the targets from general-purpose learners, and how
+// bench/suite.cpp draws their data (seed 1000 * (case index + 1) for the
+// test points, that plus N for the training points).
 
 #include <cstdint>
 #include <functional>

@@ -36,7 +36,9 @@
 ///      3-54 % lower error on 7 of the 9 suite cases, and 7 % and 63 % higher
 ///      on sifront3 and Ishigami (DEVELOPERS.md, "Defaults"). The stored
 ///      held-out metrics and training curve stay those of the fit with rows
-///      held out: an honest, usually slightly pessimistic, estimate.
+///      held out. They estimate the error from rows that fit never saw, but
+///      a few hundred rows can miss it either way (Colebrook, N = 1 000,
+///      seed 7: RMSE 2.8e-8 held out against 2.9e-7 on 20 000 test points).
 ///
 /// Shallow trials (detail::ShallowTrials) fit one layer of width at most
 /// autoTrialWidth and a quarter of the training rows to as many rows as the
