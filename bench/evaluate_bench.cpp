@@ -9,7 +9,8 @@
 #include <type_traits>
 #include <vector>
 
-#include <wavestack/wavestack.hpp>
+#include <wavestack/model/float_network.hpp>
+#include <wavestack/model/network.hpp>
 
 using namespace wavestack;
 

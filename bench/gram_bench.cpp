@@ -8,7 +8,8 @@
 #include <xsimd/xsimd.hpp>
 
 #include <wavestack/check/test_functions.hpp>
-#include <wavestack/wavestack.hpp>
+#include <wavestack/solve/gram.hpp>
+#include <wavestack/train/fit.hpp>
 
 using namespace wavestack;
 

@@ -154,7 +154,7 @@ class ToolTestCase(unittest.TestCase):
 
 FIT_ROWS, VERIFY_ROWS = 2000, 5000
 FIT_SEED, VERIFY_SEED = 1983, 2013
-FIT_SECONDS_LIMIT = 60.0  # measured about 1.5 s on 2 cores; generous for loaded CI machines
+FIT_SECONDS_LIMIT = 60.0  # a runaway-search guard, not a speed target: this fit took 18.6 s on 2 cores
 
 
 def expected_report_svgs(d, m, has_history, has_tuning):
