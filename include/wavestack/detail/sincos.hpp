@@ -98,7 +98,8 @@ void sincos(const xsimd::batch<T, Arch>& x, xsimd::batch<T, Arch>& sine, xsimd::
     using Batch = xsimd::batch<T, Arch>;
     using Bits = xsimd::batch<xsimd::as_unsigned_integer_t<T>, Arch>;
     using K = SincosConstants<T>;
-    constexpr int signShift = 8 * int(sizeof(T)) - 2;  // moves bit 1 to the sign bit
+    using Unsigned = xsimd::as_unsigned_integer_t<T>;
+    const Bits signBit(Unsigned(1) << (8 * sizeof(T) - 1));
     // Adding 1.5 * 2^(mantissa bits) rounds 2x/pi to the nearest integer q
     // and leaves q mod 4 in the lowest bits of the sum.
     const Batch magic(std::is_same_v<T, double> ? T(6755399441055744.0) : T(12582912.0f));
@@ -115,7 +116,11 @@ void sincos(const xsimd::batch<T, Arch>& x, xsimd::batch<T, Arch>& sine, xsimd::
     // s ^ ((s ^ c) & odd) picks c in odd lanes (no andnot: its operand order differs between xsimd kernels).
     const Batch flip = xsimd::bitwise_and(xsimd::bitwise_xor(s, c), odd);
     const Batch swappedSine = xsimd::bitwise_xor(s, flip), swappedCosine = xsimd::bitwise_xor(c, flip);
-    const Bits sineSign = (quadrant & Bits(2)) << signShift, cosineSign = ((quadrant + Bits(1)) & Bits(2)) << signShift;
+    // 0 - (bit 1) is 0 or all ones but bit 0, so "& signBit" moves bit 1 to
+    // the sign bit without a vector shift (GCC 12's AVX-512 shift intrinsics
+    // raise a false -Wuninitialized in every unit that compiles this).
+    const Bits sineSign = (Bits(0) - (quadrant & Bits(2))) & signBit;
+    const Bits cosineSign = (Bits(0) - ((quadrant + Bits(1)) & Bits(2))) & signBit;
     sine = xsimd::bitwise_xor(swappedSine, xsimd::bitwise_cast<Batch>(sineSign));
     cosine = xsimd::bitwise_xor(swappedCosine, xsimd::bitwise_cast<Batch>(cosineSign));
     // NaN stays NaN through the arithmetic above; large and infinite angles need the C library.
