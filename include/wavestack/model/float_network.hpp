@@ -9,9 +9,10 @@
 /// 1e-16 or below can carry amplitudes of 1e3-2e5 that cancel to an output
 /// of order 1, and in float such models lost up to 570x in accuracy
 /// (Ishigami, N = 1 000: test relative RMSE 8.5e-4 in double, 4.9e-2 in
-/// float; the float table in bench/results/suite.md). So the constructor measures what float costs this model
-/// and evaluates in double, converting inputs and outputs, when the cost is
-/// more than a quarter of the error the model already has.
+/// float; the float table in bench/results/suite.md). So the constructor
+/// measures what float costs this model and evaluates in double, converting
+/// inputs and outputs, when the cost is more than a quarter of the error the
+/// model already has.
 
 #include <array>
 #include <string>
