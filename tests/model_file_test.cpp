@@ -208,6 +208,49 @@ TEST_CASE("the version 1 fixture keeps loading")
     CHECK(net.record().inputNames == std::vector<std::string>{"x"});
 }
 
+TEST_CASE("a kernel term is saved in a KERN section of a version 2 file and loads bit-identically")
+{
+    // The hand-written network plus a KERN section with one bump (width 2,
+    // centre 1, weight 0.5): f(1.5) = 1 + cos 1 + 0.5 sin 1 + 0.5 exp(-1/2)
+    // = 2.2643031281284047 (Python's math module).
+    Bytes payload = handWrittenPayload(), kern;
+    putLe(kern, 1, 8);  // one centre
+    for (double v : {2.0, 1.0, 0.5})  // width, centre, weight
+        putF64(kern, v);
+    putSection(payload, "KERN", kern);
+    const Network hand = decodeModel(wrap(payload, 2));
+    Vector x(1);
+    x << 1.5;
+    CHECK(hand.evaluate(x)[0] == doctest::Approx(2.2643031281284047).epsilon(1e-15));
+    CHECK(encodeModel(hand) == wrap(payload, 2));
+
+    Network net = trained(2, 2, 1, FeatureMix::fourier);
+    CHECK(encodeModel(net)[8] == 1);  // without a term: version 1, readable by earlier releases
+    KernelTerm term;
+    term.widths = Vector::Constant(2, 1.5);
+    term.centres = sample(30, 2, 1, 11).x;
+    term.weights = Matrix::Random(30, 2);
+    net.setKernelTerm(term);
+    const Bytes bytes = encodeModel(net);
+    CHECK(bytes[8] == 2);  // earlier releases refuse it instead of dropping the term
+    const Network back = decodeModel(bytes);
+    CHECK(back.kernelTerm().centres == term.centres);
+    checkSameEverywhere(net, back, 2);
+    for (std::size_t n = 0; n < bytes.size(); n += 11)
+        CHECK_THROWS_AS(decodeModel(bytes.data(), n), ModelFileError);
+
+    Bytes empty = handWrittenPayload(), none;
+    putLe(none, 0, 8);
+    putSection(empty, "KERN", none);
+    try {
+        decodeModel(wrap(empty, 2));
+        FAIL("no error");
+    } catch (const ModelFileError& e) {
+        CHECK(std::string(e.what()).find("no centres") != std::string::npos);
+        CHECK(e.offset() == 32 + 28 + 44 + 68);  // header, SHAP, SCAL, LAYR: the KERN tag
+    }
+}
+
 TEST_CASE("damaged files give a clear error with a byte offset, never a crash")
 {
     const Bytes good = encodeModel(trained(2, 2, 1, FeatureMix::both));
@@ -233,7 +276,7 @@ TEST_CASE("damaged files give a clear error with a byte offset, never a crash")
     }
     SUBCASE("a newer format version")
     {
-        CHECK_THROWS_WITH_AS(decodeModel(wrap(handWrittenPayload(), 2)), doctest::Contains("version 2"),
+        CHECK_THROWS_WITH_AS(decodeModel(wrap(handWrittenPayload(), 3)), doctest::Contains("version 3"),
                              ModelFileError);
     }
     SUBCASE("another scalar type")

@@ -31,7 +31,8 @@ Index parameterCount(const Network& network)
         for (const auto& group : layer.groups)
             count += group.parameters.size();
     }
-    return count;
+    const KernelTerm& term = network.kernelTerm();
+    return count + term.widths.size() + term.centres.size() + term.weights.size();
 }
 
 const char* kindName(FeatureKind kind) { return kind == FeatureKind::fourier ? "Fourier" : "ridge"; }
@@ -75,6 +76,9 @@ int runInfo(const InfoCommand& command)
         }
         fmt::print("  layer {}: {}\n", l, fmt::join(groups, ", "));
     }
+    if (!network.kernelTerm().empty())
+        fmt::print("  kernel term: {} Gaussian bumps centred on training points, added to the layers\n",
+                   network.kernelTerm().centreCount());
     fmt::print("parameters:  {} ({} parameter rows)\n", parameterCount(network), network.width());
     if (record.fitSeconds > 0.0)
         fmt::print("fit time:    {:.2f} s\n", record.fitSeconds);

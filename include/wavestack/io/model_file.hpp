@@ -2,13 +2,15 @@
 /// \file
 /// Saving and loading a trained network as one file ("model file", .wsm).
 ///
-/// Format, version 1. All integers are unsigned little-endian, all reals
+/// Format, version 2 (1 without a kernel term). All integers are unsigned little-endian, all reals
 /// IEEE-754 binary64 little-endian; every value is encoded and decoded byte
 /// by byte, so a file reads the same on any host.
 ///
 ///   offset  size  field
 ///   0       8     magic: 0x89 'W' 'S' 'M' 0x0D 0x0A 0x1A 0x0A
-///   8       4     format version (1)
+///   8       4     format version: 2 when a KERN section is present, else 1,
+///                 so readers that predate KERN refuse such a model instead
+///                 of skipping the term and predicting something else
 ///   12      4     scalar code: 8 = binary64 (the only one version 1 defines)
 ///   16      8     payload length P in bytes
 ///   24      4     CRC-32 (ISO 3309) of the payload
@@ -36,6 +38,9 @@
 ///   "TUNH" (optional) u32 count, then count x (u32 epoch, f64 training
 ///          RMSE, f64 validation RMSE)
 ///   "TIME" (optional) f64 fit wall time in seconds
+///   "KERN" (optional, version 2) u64 centres J, then f64 widths[d],
+///          centres[J * d] row by row, weights[J * m] row by row
+///          (model/kernel_term.hpp)
 ///
 /// Loading trusts nothing: every count is checked against the bytes that
 /// remain before anything is allocated, every real must be finite where the
@@ -82,7 +87,9 @@ private:
 namespace modelfile {
 
 constexpr unsigned char magic[8] = {0x89, 'W', 'S', 'M', 0x0D, 0x0A, 0x1A, 0x0A};
-constexpr std::uint32_t formatVersion = 1;
+constexpr std::uint32_t formatVersion = 2;
+/// The version written for a model without a kernel term: readable by every release.
+constexpr std::uint32_t baseVersion = 1;
 constexpr std::uint32_t binary64 = 8;
 constexpr std::size_t headerSize = 32;
 
@@ -344,10 +351,19 @@ inline std::vector<unsigned char> encodeModel(const Network& network)
         s.f64(record.fitSeconds);
         detail::writeSection(payload, "TIME", s);
     }
+    const KernelTerm& term = network.kernelTerm();
+    if (!term.empty()) {
+        ByteWriter s;
+        s.u64(std::uint64_t(term.centreCount()));
+        detail::writeMatrix(s, term.widths);
+        detail::writeMatrix(s, term.centres);
+        detail::writeMatrix(s, term.weights);
+        detail::writeSection(payload, "KERN", s);
+    }
 
     ByteWriter file;
     file.bytes(modelfile::magic, 8);
-    file.u32(modelfile::formatVersion);
+    file.u32(term.empty() ? modelfile::baseVersion : modelfile::formatVersion);
     file.u32(modelfile::binary64);
     file.u64(payload.buffer().size());
     file.u32(detail::crc32(payload.buffer().data(), payload.buffer().size()));
@@ -395,6 +411,8 @@ inline Network decodeModel(const unsigned char* data, std::size_t size)
     TrainingDomain domain;
     ModelRecord record;
     std::vector<std::string> names;
+    KernelTerm term;
+    std::size_t termOffset = 0;
 
     while (!payload.atEnd()) {
         const std::size_t tagOffset = payload.offset();
@@ -507,6 +525,15 @@ inline Network decodeModel(const unsigned char* data, std::size_t size)
             record.tuningHistory = detail::readCurve(s, &TuningStep::epoch, "tuning history");
         } else if (name == "TIME") {
             record.fitSeconds = s.finite("fit time");
+        } else if (name == "KERN") {
+            requireShape();
+            termOffset = tagOffset;
+            const std::uint64_t centres = s.u64("kernel centre count");
+            if (centres == 0)
+                throw ModelFileError("a kernel term with no centres", tagOffset);
+            term.widths = s.finiteVector(d, "kernel widths");
+            term.centres = s.finiteMatrix(centres, d, "kernel centres");
+            term.weights = s.finiteMatrix(centres, m, "kernel weights");
         }
         // Unknown tags: skipped (later minor additions stay readable).
     }
@@ -528,6 +555,13 @@ inline Network decodeModel(const unsigned char* data, std::size_t size)
             payload.fail("domain size does not match the inputs");
         network.setDomain(std::move(domain));
         network.setRecord(std::move(record));
+        if (!term.empty()) {
+            try {
+                network.setKernelTerm(std::move(term));
+            } catch (const InvalidInput& e) {
+                throw ModelFileError(e.what(), termOffset);
+            }
+        }
         return network;
     } catch (const InvalidInput& e) {
         payload.fail(e.what());

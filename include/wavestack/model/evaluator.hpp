@@ -7,11 +7,13 @@
 
 #include <algorithm>
 #include <array>
+#include <type_traits>
 #include <vector>
 
 #include "wavestack/core/types.hpp"
 #include "wavestack/detail/simd.hpp"
 #include "wavestack/features/feature_group.hpp"
+#include "wavestack/model/kernel_term.hpp"
 #include "wavestack/model/layer.hpp"
 #include "wavestack/model/scaler.hpp"
 
@@ -30,6 +32,9 @@ inline const char* stateInputName(StateInput input)
 
 /// Outputs the single-point path keeps on the stack; more allocate.
 constexpr Index maxStackOutputs = 32;
+/// Inputs converted to double on the stack by float evaluation paths that
+/// need double (a kernel term, FloatNetwork in double); more allocate.
+constexpr Index maxStackInputs = 64;
 
 namespace detail {
 
@@ -59,11 +64,12 @@ public:
     Evaluator() = default;
 
     /// Folds the input scaler into the input groups and converts to Scalar.
-    /// The layers must already be consistent (Network checks them).
+    /// The layers and the term must already be consistent (Network checks
+    /// them). The kernel term is evaluated in double whatever Scalar is.
     Evaluator(const InputScaler& inputScaler, const OutputScaler& outputScaler, const std::vector<Layer>& layers,
-              StateInput stateInput)
+              StateInput stateInput, const KernelTerm& term = KernelTerm())
         : m_inputCount(inputScaler.inputCount()), m_mean(outputScaler.mean().cast<Scalar>()),
-          m_deviation(outputScaler.deviation().cast<Scalar>()), m_stateInput(stateInput)
+          m_deviation(outputScaler.deviation().cast<Scalar>()), m_stateInput(stateInput), m_term(term)
     {
         for (const Layer& layer : layers) {
             std::vector<Kernel> kernels;
@@ -125,6 +131,7 @@ public:
         const Index rowsInBudget = (Index(512) << 10) / (std::max<Index>(widest, 1) * Index(sizeof(Scalar)));
         const Index block = std::min(std::clamp<Index>(rowsInBudget / 16 * 16, 32, 256), std::max<Index>(points, 1));
         MatrixS features(block, widest), initial(block, m), residual(block, m), state(block, m);
+        Matrix termScratch;
         for (Index r0 = 0; r0 < points; r0 += block) {
             const Index n = std::min(block, points - r0);
             const auto x = inputs.middleRows(r0, n);
@@ -148,6 +155,11 @@ public:
                 }
             }
             outputs.middleRows(r0, n) = ((f0 + z) * m_deviation.asDiagonal()).rowwise() + m_mean.transpose();
+            if (!m_term.empty()) {
+                Matrix termValues = Matrix::Zero(n, m);
+                m_term.addBatch(x.template cast<double>(), termValues, termScratch);
+                outputs.middleRows(r0, n) += termValues.cast<Scalar>();
+            }
         }
         return outputs;
     }
@@ -171,6 +183,30 @@ private:
         }
         for (Index o = 0; o < m; ++o)
             y[o] = m_mean[o] + m_deviation[o] * (f0[o] + z[o]);
+        if (!m_term.empty())
+            addTerm(x, y);
+    }
+
+    void addTerm(const Scalar* x, Scalar* y) const noexcept
+    {
+        if constexpr (std::is_same_v<Scalar, double>) {
+            m_term.addPoint(x, y);
+        } else {
+            const Index d = inputCount(), m = outputCount();
+            if (d > maxStackInputs || m > maxStackOutputs) {
+                std::vector<double> in(x, x + d), out(static_cast<std::size_t>(m), 0.0);
+                m_term.addPoint(in.data(), out.data());
+                for (Index o = 0; o < m; ++o)
+                    y[o] += Scalar(out[std::size_t(o)]);
+                return;
+            }
+            std::array<double, maxStackInputs> in;
+            std::array<double, maxStackOutputs> out{};
+            std::copy(x, x + d, in.begin());
+            m_term.addPoint(in.data(), out.data());
+            for (Index o = 0; o < m; ++o)
+                y[o] += Scalar(out[std::size_t(o)]);
+        }
     }
 
     static void accumulatePoint(const Kernel& kernel, const Scalar* source, Scalar* y) noexcept
@@ -231,6 +267,7 @@ private:
     VectorS m_mean, m_deviation;
     StateInput m_stateInput = StateInput::runningPrediction;
     std::vector<std::vector<Kernel>> m_kernels;  // one per group, per layer
+    detail::KernelTermEvaluator m_term;
 };
 
 }  // namespace wavestack

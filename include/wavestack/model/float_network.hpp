@@ -35,16 +35,14 @@ constexpr double floatErrorShare = 0.25;
 /// box (the input scaler's box for a model without a recorded domain).
 constexpr Index floatCheckPoints = 1024;
 
-/// Inputs evaluate(x, y) converts on the stack when it evaluates in double;
-/// more are converted through the heap.
-constexpr Index maxStackInputs = 64;
 
 class FloatNetwork {
 public:
     using MatrixF = Eigen::MatrixXf;
 
     explicit FloatNetwork(const Network& network)
-        : m_single(network.inputScaler(), network.outputScaler(), network.layers(), network.stateInput()),
+        : m_single(network.inputScaler(), network.outputScaler(), network.layers(), network.stateInput(),
+                   network.kernelTerm()),
           m_double(network.evaluator())
     {
         const Index d = network.inputCount(), m = network.outputCount();

@@ -17,6 +17,7 @@
 #include "wavestack/detail/simd.hpp"
 #include "wavestack/model/domain.hpp"
 #include "wavestack/model/evaluator.hpp"
+#include "wavestack/model/kernel_term.hpp"
 #include "wavestack/model/layer.hpp"
 #include "wavestack/model/record.hpp"
 #include "wavestack/model/scaler.hpp"
@@ -30,9 +31,11 @@ namespace wavestack {
 ///     f0     = sum_k b_0k . phi(w_0k . u)                      (layer 0, inputs only)
 ///     z_0    = 0
 ///     z_l+1  = z_l + sum_k b_lk . phi(w_lk . u) + sum_k c_lk . phi(v_lk . s_l)
-///     f(x)   = mean + deviation * (f0 + z_L),   u = S(x)
+///     f(x)   = mean + deviation * (f0 + z_L) [+ t(x)],   u = S(x)
 ///
 /// with s_l chosen by StateInput. A shallow network is the case of one layer.
+/// The optional kernel term t (model/kernel_term.hpp) is added in the user's
+/// units; the layers then model what it leaves.
 class Network {
 public:
     Network() = default;
@@ -74,6 +77,18 @@ public:
     /// The initial layer, f0.
     const Layer& layer() const { return m_layers.front(); }
     StateInput stateInput() const { return m_stateInput; }
+
+    /// The additive kernel term (empty unless set).
+    const KernelTerm& kernelTerm() const { return m_term; }
+    /// Adds `term` to the network's output (replacing any earlier one); an
+    /// empty term removes it. Throws InvalidInput when it does not fit.
+    void setKernelTerm(KernelTerm term)
+    {
+        term.check(inputCount(), outputCount(), "Network::setKernelTerm");
+        m_term = std::move(term);
+        m_evaluator = Evaluator<double>(m_inputScaler, m_outputScaler, m_layers, m_stateInput, m_term);
+        m_termEvaluator = detail::KernelTermEvaluator(m_term);
+    }
 
     /// Where the training inputs lay (empty for a hand-built network).
     const TrainingDomain& domain() const { return m_domain; }
@@ -121,9 +136,11 @@ public:
             }
         }
         const auto& deviation = m_outputScaler.deviation();
-        Eigen::Map<Vector>(y, m) = m_outputScaler.mean() + deviation.cwiseProduct(f0 + z);
-        Eigen::Map<Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor>>(jacobian, m, d) =
-            deviation.asDiagonal() * (jf0 + jz);
+        Vector value = m_outputScaler.mean() + deviation.cwiseProduct(f0 + z);
+        Matrix total = deviation.asDiagonal() * (jf0 + jz);
+        m_termEvaluator.addWithJacobian(point, value, total);
+        Eigen::Map<Vector>(y, m) = value;
+        Eigen::Map<Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor>>(jacobian, m, d) = total;
     }
 
     /// One point: reads inputCount() values at x, writes outputCount() at y.
@@ -211,7 +228,9 @@ private:
     StateInput m_stateInput = StateInput::runningPrediction;
     TrainingDomain m_domain;
     ModelRecord m_record;
+    KernelTerm m_term;
     Evaluator<double> m_evaluator;  // derived from the above
+    detail::KernelTermEvaluator m_termEvaluator;  // for the Jacobian
 };
 
 }  // namespace wavestack
