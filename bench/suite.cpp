@@ -123,13 +123,16 @@ std::string machine()
 std::string floatRow(const Case& c, Index n, const Network& network, const tf::Sample& test)
 {
     const Evaluator<float> plain(network.inputScaler(), network.outputScaler(), network.layers(),
-                                 network.stateInput());
+                                 network.stateInput(), network.kernelTerm());
     const FloatNetwork guarded(network);
     const Eigen::MatrixXf x = test.x.cast<float>();
     const auto error = [&](const Matrix& p) { return measureErrors(p.col(0), test.y.col(0)).relativeRmse; };
     double largest = 0.0;
     for (const Layer& layer : network.layers())
         largest = std::max(largest, layer.amplitudes.cwiseAbs().maxCoeff());
+    if (!network.kernelTerm().empty())  // in output units, the layers' in standardised ones
+        largest = std::max(largest, network.kernelTerm().weights.cwiseAbs().maxCoeff() /
+                                        network.outputScaler().deviation()[0]);
     return fmt::format("| {} ({}) | {} | {:.2e} | {:.2e} | {:.2e} | {} | {:.2g} | {:.2g} |", c.name,
                        c.domain.dimension(), n, error(network.evaluateBatch(test.x)),
                        error(plain.evaluateBatch(x).cast<double>()), error(guarded.evaluateBatch(x).cast<double>()),
@@ -217,14 +220,18 @@ int main(int argc, char** argv)
                                                    : settings.substr(at + key.size() + 3,
                                                                      settings.find('\n', at) - at - key.size() - 3);
                 };
+                const std::string shape =
+                    network.kernelTerm().empty()
+                        ? fmt::format("{} x {}, {}, stddev {}, lambda {}", network.residualLayerCount() + 1,
+                                      value("width"), value("features"), value("frequency stddev"), value("lambda"))
+                        : fmt::format("kernel term, {} centres, width {}, lambda {}",
+                                      network.kernelTerm().centreCount(), value("kernel width"),
+                                      value("kernel lambda"));
                 const std::string row = fmt::format(
-                    "| {} ({}) | {} | {:.2e} | {:.2e} | {:.2g}x{} | {:.2e} | {:.6f} | {:.1f} | {:.0f} | "
-                    "{} x {}, {}, stddev {}, lambda {} |",
+                    "| {} ({}) | {} | {:.2e} | {:.2e} | {:.2g}x{} | {:.2e} | {:.6f} | {:.1f} | {:.0f} | {} |",
                     c.name, c.domain.dimension(), n, m.relativeRmse, target, m.relativeRmse / target,
                     m.relativeRmse <= target ? " (met)" : "", m.maxAbsError / deviation, m.correlation,
-                    network.record().fitSeconds, nanosecondsPerPoint(network, test.x),
-                    network.residualLayerCount() + 1, value("width"), value("features"), value("frequency stddev"),
-                    value("lambda"));
+                    network.record().fitSeconds, nanosecondsPerPoint(network, test.x), shape);
                 std::printf("%s\n", row.c_str());
                 std::fflush(stdout);
                 rows.push_back(row);
@@ -272,7 +279,9 @@ int main(int argc, char** argv)
     file << "\nFloat or double, fit seed " << seeds.front()
          << ": test relative RMSE evaluated in double, in plain float (`Evaluator<float>`) and through "
             "`FloatNetwork`, which keeps float only where the float-vs-double RMS on its 1 024 check points is at "
-            "most 0.25 x the model's held-out RMSE (deviation column: that ratio).\n\n"
+            "most 0.25 x the model's held-out RMSE (deviation column: that ratio). A kernel term is evaluated in "
+            "double by every evaluator; its largest weight (in standard deviations of the output) is counted "
+            "as an amplitude.\n\n"
          << "| case (d) | N | double | plain float | FloatNetwork | keeps float | deviation / held-out RMSE | "
             "largest amplitude |\n|---|---|---|---|---|---|---|---|\n";
     for (const auto& row : floatRows)

@@ -130,7 +130,7 @@ int main(int argc, char** argv)
             std::string errors, correlations;
             double firstSeconds = 0.0;
             for (std::uint64_t seed : seeds) {
-                // autoFit's compact shape (its step 8), with the whole
+                // autoFit's compact shape (its step 9), with the whole
                 // 1 000-epoch schedule: with patience 40 the held-out error,
                 // noisy while the rate is high, stopped d = 3 at epoch 115
                 // with 0.093 where the full 300 epochs reached 0.062.

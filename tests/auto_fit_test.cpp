@@ -136,6 +136,7 @@ TEST_CASE("with few rows residual layers read a narrow state group and keep a sm
     const tf::Sample test = tf::drawSample(tf::colebrookDomain(), 20000, random, tf::colebrook);
     AutoFitOptions automatic;
     automatic.seed = 1;
+    automatic.kernelTerm = false;  // the layers are under test here; the next test keeps the term
     const Network network = autoFit(train.x, train.y, automatic);
     REQUIRE(network.residualLayerCount() >= 1);
     CHECK(autoStateWidth(800, 400) == 25);
@@ -147,6 +148,39 @@ TEST_CASE("with few rows residual layers read a narrow state group and keep a sm
     MESSAGE("Colebrook, N = 1 000: test relative RMSE " << error << " with " << network.residualLayerCount()
                                                          << " residual layers");
     CHECK(error < 1.5e-4);
+}
+
+TEST_CASE("with few rows autoFit keeps a kernel term where it does better on held-out rows")
+{
+    // Ishigami (Ishigami & Homma 1990; formula checked against numpy in
+    // tests/reference/test_functions_reference.py), N = 1 000. Kernel ridge
+    // with an anisotropic Gaussian kernel is the limit random Fourier
+    // features approach (Rahimi & Recht 2007); at this size it is the better
+    // model. Measured: test relative RMSE 6.5e-4 with the term against
+    // 1.0e-3 with feature layers only (g++ -O2); the suite's target (a
+    // Gaussian process, scikit-learn 1.2) is 2.0e-4. The choice is made on
+    // the 200 held-out rows and can go either way near a tie: on the
+    // Colebrook data of the test above the term held out 1.59e-5 against
+    // the layers' 1.45e-5 and was not kept, though the layers then gave
+    // 6.6e-5 on the test points.
+    Random random(15);
+    const tf::Sample train = tf::drawSample(tf::ishigamiDomain(), 1000, random, tf::ishigami);
+    const tf::Sample test = tf::drawSample(tf::ishigamiDomain(), 20000, random, tf::ishigami);
+    AutoFitOptions automatic;
+    automatic.seed = 1;
+    automatic.threads = 2;
+    const Network chosen = autoFit(train.x, train.y, automatic);
+    automatic.kernelTerm = false;
+    const Network layers = autoFit(train.x, train.y, automatic);
+    const double withTerm = testError(chosen, test), without = testError(layers, test);
+    MESSAGE("Ishigami, N = 1 000: test relative RMSE " << withTerm << " with the kernel term, " << without
+                                                        << " with feature layers only");
+    REQUIRE(chosen.kernelTerm().centreCount() == 1000);  // refitted on every row
+    CHECK(chosen.record().settings.find("kernel term alone") != std::string::npos);
+    CHECK(layers.kernelTerm().empty());
+    CHECK(layers.record().settings.find("kernel term") == std::string::npos);
+    CHECK(withTerm < 0.8 * without);
+    CHECK(withTerm < 1e-3);
 }
 
 TEST_CASE("with the Metropolis sampler autoFit stays near the Gaussian default on a smooth target")
@@ -171,8 +205,8 @@ TEST_CASE("on a sharp front autoFit keeps the compact Adam-tuned network when it
 {
     // An oblique tanh front in 3-D (one ridge function, Barron 1993): random
     // features at N = 1 000 leave about 9 % unexplained, above
-    // autoCompactThreshold, so step 8 runs. Passing the sampler (the same
-    // Gaussian default) skips step 8 and leaves every other choice as it was.
+    // autoCompactThreshold, so step 9 runs. Passing the sampler (the same
+    // Gaussian default) skips steps 8 and 9 and leaves every other choice as it was.
     Vector v(3);
     v << 1.0, -2.0, 0.5;
     v.normalize();
@@ -181,6 +215,7 @@ TEST_CASE("on a sharp front autoFit keeps the compact Adam-tuned network when it
     const testing::Sample test = testing::uniformSample(4000, 3, 22, front);
     AutoFitOptions automatic;
     automatic.threads = 2;
+    automatic.kernelTerm = false;  // this test is about the compact network
     const Network chosen = autoFit(train.x, train.y, automatic);
     automatic.sampler = SamplerKind::gaussian;
     const Network layered = autoFit(train.x, train.y, automatic);

@@ -20,6 +20,7 @@ struct FitCommand {
     std::optional<double> holdout, lambda, frequencyStddev;
     std::optional<std::string> sampler, features;
     double timeLimit = 0.0;  // seconds; 0: none
+    bool noKernel = false;   // never a kernel term (AutoFitOptions::kernelTerm)
     std::uint64_t seed = 1;
     Index threads = 0;  // 0: all hardware threads
     bool quiet = false;

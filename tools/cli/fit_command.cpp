@@ -142,6 +142,7 @@ AutoFitOptions chooseOptions(const FitCommand& command, Index rows, Index inputs
                            : *command.features == "both" ? FeatureMix::both
                                                          : FeatureMix::fourier;
     options.timeLimit = command.timeLimit;
+    options.kernelTerm = !command.noKernel;
     options.seed = command.seed;
     options.threads = command.threads > 0 ? command.threads
                                           : std::max<Index>(1, Index(std::thread::hardware_concurrency()));

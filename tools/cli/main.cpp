@@ -105,6 +105,9 @@ int run(int argc, char** argv)
     fitApp->add_option("--time-limit", fit.timeLimit, "Seconds; past it no layer is started and tuning stops, "
                                                       "keeping what was done (default 0: no limit)")
         ->check(realNumber(0.0, huge));
+    fitApp->add_flag("--no-kernel", fit.noKernel,
+                     "Never a kernel term (tried by default up to 1 000 training rows); its evaluation costs one "
+                     "exponential per training row and runs in double");
     fitApp->add_option("--seed", fit.seed, "Seed of every random choice (default 1)")->check(wholeNumber(0));
     fitApp->add_option("--threads", fit.threads, "Worker threads (default: all; the model does not depend on it)")
         ->check(wholeNumber(0));

@@ -23,12 +23,22 @@
 ///   7. Adam tuning: up to autoTuneEpochsFor() epochs, kept only as far as
 ///      it lowers the held-out error (the tuner keeps its best epoch, which
 ///      is epoch 0, the untuned network, when tuning does not pay);
-///   8. only when the network from steps 1-7 leaves a held-out relative
+///   8. with at most autoKernelRows training rows, no shape given and
+///      AutoFitOptions::kernelTerm: a kernel term alone (kernel ridge with
+///      an anisotropic Gaussian kernel, every training row a centre; see
+///      chooseKernelTerm and model/kernel_term.hpp) is fitted on the same
+///      training rows, and kept if it has the lower held-out error. Random
+///      Fourier features converge to that kernel slowly (DEVELOPERS.md,
+///      "Known gaps"); at N = 1 000 it lowered the 4-seed test error of the
+///      3-D Si-front 5x, of Ishigami 2x, of Colebrook and wing weight 1.3-2.4x;
+///   9. only when the model so far leaves a held-out relative
 ///      RMSE above autoCompactThreshold (a front, say) and no shape was
 ///      given: a compact network (4 residual layers of 128 rows, Fourier +
 ///      ridge, Metropolis-sampled, then Adam through a whole schedule) is
 ///      fitted as well, and whichever has the lower held-out error is kept;
-///   9. unless step 8 replaced the network: with at most autoRefitRows
+///  10. a kept kernel term is refitted on every row (same widths, its lambda
+///      chosen again from the one found upwards); otherwise, unless step 9
+///      replaced the network: with at most autoRefitRows
 ///      training rows and the Gaussian sampler
 ///      (a Metropolis chain needs held-out rows to choose its snapshot): the model is fitted again
 ///      on every row, held-out ones included, with all of the above (layer
@@ -45,7 +55,7 @@
 /// final fit trains on (at most 4 000, a seeded subset) and score it by
 /// leave-one-out error on every one of them (solve/ridge_loo.hpp): five
 /// times the rows of the 20 % held-out split, so less noise in the choices.
-/// Steps 6 to 8 use the held-out rows; without them (validationFraction 0)
+/// Steps 6 to 9 use the held-out rows; without them (validationFraction 0)
 /// steps 1-5 still run and no residual layer is added. The evidence for
 /// each rule is in DEVELOPERS.md ("Defaults") and bench/results/suite.md.
 
@@ -57,9 +67,12 @@
 #include <optional>
 #include <sstream>
 #include <string>
+#include <tuple>
+#include <utility>
 #include <vector>
 
 #include "wavestack/core/types.hpp"
+#include "wavestack/solve/kernel_ridge.hpp"
 #include "wavestack/train/auto_settings.hpp"
 #include "wavestack/train/fit.hpp"
 
@@ -71,6 +84,12 @@ struct AutoFitOptions {
     std::optional<double> lambda, frequencyStddev;
     std::optional<FeatureMix> features;
     std::optional<SamplerKind> sampler;  ///< unset: Gaussian
+    /// With at most autoKernelRows training rows and no shape given, also
+    /// fit a kernel term alone (step 8) and keep it if it does better on
+    /// the held-out rows. Off: always a network of feature layers, whose
+    /// evaluation cost does not grow with the training rows and which
+    /// FloatNetwork may run in float.
+    bool kernelTerm = true;
     /// Held out for every choice, early stopping and the stored metrics.
     double validationFraction = 0.2;
     /// Wall-time budget in seconds (0: none). Past it no residual layer is
@@ -163,7 +182,7 @@ inline Index autoTuneEpochsFor(Index trainingRows, Index width)
 }
 
 /// Held-out relative RMSE above which autoFit also tries a compact network
-/// tuned by Adam (step 8): random features leave more than 1 % unexplained
+/// tuned by Adam (step 9): random features leave more than 1 % unexplained
 /// only on fronts in the suite (Si-front 0.11-0.55; smooth cases 1e-5 to
 /// 4e-3), and there layer-by-layer training then Adam did 3-9x better
 /// (bench/results/tuning_experiment.md, d = 3).
@@ -236,6 +255,135 @@ inline FitOptions compactTunedOptions(const FitOptions& chosen, Index trainingRo
     o.tune.amplitudeRate = 2e-3;
     o.tune.lambda = 1e-3;
     return o;
+}
+
+}  // namespace detail
+
+/// Training rows up to which autoFit also fits a kernel term alone (step
+/// 8). Each trial of its search decomposes an n x n matrix: 0.17 s at 800
+/// rows, 0.31 s at 1 000, 1.45 s at 1 600 (one core), so the search took
+/// 1.7-6 s at 800 rows and would take about 40 s at 1 600 with 8 inputs.
+constexpr Index autoKernelRows = 1000;
+
+/// The kernel term's per-input search is skipped when its first stage
+/// (common width only) scores worse than this multiple of the Fourier
+/// trials' leave-one-out error: random features with many layers then win
+/// by far (Friedman #1, N = 1 000: kernel 1.8e-4 against trial 2.7e-6 and
+/// a final network at 7e-7 held out), and the search would cost 3 s.
+constexpr double autoKernelHopeless = 10.0;
+
+namespace detail {
+
+/// A kernel term with the training rows as centres, and how it was chosen.
+struct KernelChoice {
+    KernelTerm term;
+    double width = 0.0;  ///< sigma, on the inputs as the network's scaler maps them
+    Vector scales;       ///< per input, multiplying those inputs
+    KernelRidgeSolution solution;
+};
+
+/// Kernel ridge on rows x and y (user units), centres at every row, with
+/// the kernel's widths chosen by leave-one-out error (solve/kernel_ridge.hpp)
+/// on the inputs as `inputScaler` maps them, outputs standardised by
+/// `outputScaler`. The search starts from the Fourier spread `sigma` and
+/// the scaler's per-input stretch (autoFit's steps 2-3), chooses a common
+/// factor of 1/4 to 4, and then per-input factors: a pattern search with
+/// step 2, then sqrt 2, one pass each, a step kept when it lowers the
+/// error by 1 %. The best spread for a few hundred random
+/// features is not the exact kernel's: with autoFit's Fourier spreads as
+/// they are, the kernel term reached Ishigami 7.6e-4 and Colebrook 1.4e-4
+/// (N = 1 000, seed 7), and searched on a 400-row subset Ishigami 5.2e-4;
+/// searched on all 800 rows 2.7e-4 and 1.1e-5. Returns nothing when the
+/// common width alone scores above autoKernelHopeless x `fourierError`.
+/// Candidates run side by side on `threads` threads.
+inline std::optional<KernelChoice> chooseKernelTerm(const MatrixView& x, const MatrixView& y,
+                                                    const InputScaler& inputScaler, const OutputScaler& outputScaler,
+                                                    double sigma, const std::vector<double>& lambdas,
+                                                    double fourierError, Index threads)
+{
+    const Matrix u = inputScaler.apply(x), v = outputScaler.apply(y);
+    const Index d = u.cols();
+    Vector scales = Vector::Ones(d);
+    double factor = 1.0;
+    KernelRidgeSolution best;
+    // Scores candidates (factor, scales) side by side; keeps the best if it
+    // lowers the current error below `gain` times it.
+    const auto tryCandidates = [&](const std::vector<std::pair<double, Vector>>& candidates, double gain) {
+        std::vector<KernelRidgeSolution> solutions(candidates.size());
+        ThreadReduction(threads).run(Index(candidates.size()), [&](Index i) {
+            const auto& [f, s] = candidates[std::size_t(i)];
+            try {
+                solutions[std::size_t(i)] = kernelRidge(u * s.asDiagonal(), v, sigma * f, lambdas);
+            } catch (const NumericalError&) {
+            }
+        });
+        std::size_t chosen = 0;
+        for (std::size_t i = 1; i < solutions.size(); ++i)
+            if (solutions[i].error.relativeRmse < solutions[chosen].error.relativeRmse)
+                chosen = i;
+        if (!(solutions[chosen].error.relativeRmse < gain * best.error.relativeRmse))
+            return false;
+        std::tie(factor, scales) = candidates[chosen];
+        best = std::move(solutions[chosen]);
+        return true;
+    };
+    std::vector<std::pair<double, Vector>> common;
+    for (double f : {0.25, 0.5, 1.0, 2.0, 4.0})
+        common.emplace_back(f, scales);
+    tryCandidates(common, 1.0);
+    if (!(best.error.relativeRmse <= autoKernelHopeless * fourierError))
+        return std::nullopt;
+    for (double step : {2.0, std::sqrt(2.0)})
+        for (Index j = 0; j < d; ++j) {
+            if (u.col(j).cwiseAbs().maxCoeff() < 1e-6)
+                continue;  // an input the Fourier search switched off
+            std::vector<std::pair<double, Vector>> candidates(2, {factor, scales});
+            candidates[0].second[j] /= step;
+            candidates[1].second[j] *= step;
+            tryCandidates(candidates, autoScaleGain);
+        }
+    KernelChoice choice;
+    choice.width = sigma * factor;
+    choice.scales = scales;
+    choice.term.widths = choice.width * scales.cwiseProduct(inputScaler.scale());
+    choice.term.centres = x;
+    choice.term.weights = best.weights * outputScaler.deviation().asDiagonal();
+    choice.solution = std::move(best);
+    return choice;
+}
+
+/// The kernel term of `choice`'s widths on rows x and y, its lambda chosen
+/// again from choice's upwards; nothing when no lambda is trustworthy.
+inline std::optional<KernelTerm> refitKernelTerm(const MatrixView& x, const MatrixView& y,
+                                                 const InputScaler& inputScaler, const OutputScaler& outputScaler,
+                                                 const KernelChoice& choice)
+{
+    const Matrix u = inputScaler.apply(x) * choice.scales.asDiagonal(), v = outputScaler.apply(y);
+    std::vector<double> lambdas;
+    for (double lambda : autoLambdaGrid())
+        if (lambda >= choice.solution.lambda)
+            lambdas.push_back(lambda);
+    const KernelRidgeSolution solution = kernelRidge(u, v, choice.width, lambdas);
+    if (!std::isfinite(solution.error.relativeRmse))
+        return std::nullopt;
+    KernelTerm term;
+    term.widths = choice.width * choice.scales.cwiseProduct(inputScaler.scale());
+    term.centres = x;
+    term.weights = solution.weights * outputScaler.deviation().asDiagonal();
+    return term;
+}
+
+/// A network whose layers add nothing (one constant feature with amplitude
+/// 0, so it costs one tanh) carrying `term`: output mean + t(x).
+inline Network kernelTermNetwork(const InputScaler& inputScaler, const OutputScaler& outputScaler, KernelTerm term)
+{
+    const Index d = inputScaler.inputCount(), m = outputScaler.outputCount();
+    Layer layer;
+    layer.groups.push_back(FeatureGroup{FeatureKind::ridge, Matrix::Zero(1, d + 1), FeatureSource::input});
+    layer.amplitudes = Matrix::Zero(1, m);
+    Network network(inputScaler, outputScaler, std::move(layer));
+    network.setKernelTerm(std::move(term));
+    return network;
 }
 
 }  // namespace detail
@@ -335,8 +483,9 @@ inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, cons
                                        [](FitOptions& o, FeatureMix f) { o.features = f; });
         chosen << "automatic: features\n";
     }
+    double trialError = -1.0;  // leave-one-out error of the final trial settings
     if (!automatic.lambda) {
-        trials.score();  // the lambda of the final trial settings
+        trialError = trials.score();  // the lambda of the final trial settings
         options.lambda = trials.bestLambda();
         chosen << "automatic: lambda\n";
     }
@@ -357,12 +506,64 @@ inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, cons
     Network network = fit(inputs, outputs, options);
     ModelRecord record = network.record();
     record.settings += chosen.str();
+    const bool shapeGiven = automatic.width || automatic.layers || automatic.tuneEpochs || automatic.features ||
+                            automatic.sampler;
+    const auto pastDeadline = [&] { return options.deadline && std::chrono::steady_clock::now() > *options.deadline; };
+    // Step 8: a kernel term alone, on the training rows of fit's split.
+    std::optional<detail::KernelChoice> kernel;
+    if (automatic.kernelTerm && !shapeGiven && options.validationFraction > 0.0 && training <= autoKernelRows &&
+        !pastDeadline()) {
+        const detail::RowSplit split = detail::splitRows(inputs.rows(), options.validationFraction, options.seed);
+        const Matrix x = detail::selectRows(inputs, split.order, split.held, inputs.rows());
+        const Matrix y = detail::selectRows(outputs, split.order, split.held, inputs.rows());
+        const Matrix heldX = detail::selectRows(inputs, split.order, 0, split.held);
+        const Matrix heldY = detail::selectRows(outputs, split.order, 0, split.held);
+        const OutputScaler outputScaler = OutputScaler::fromData(outputs);
+        if (trialError < 0.0)
+            trialError = trials.score();
+        std::optional<detail::KernelChoice> choice = detail::chooseKernelTerm(
+            x, y, network.inputScaler(), outputScaler, options.frequencyStddev,
+            automatic.lambda ? std::vector<double>{*automatic.lambda} : autoLambdaGrid(), trialError,
+            options.threads);
+        if (!choice) {
+            std::ostringstream verdict;
+            verdict << "automatic: kernel term not searched: its common width alone scored above "
+                    << autoKernelHopeless << " x the Fourier trials' leave-one-out error " << trialError << "\n";
+            record.settings += verdict.str();
+        } else {
+            Network candidate = detail::kernelTermNetwork(network.inputScaler(), outputScaler, choice->term);
+            ModelRecord candidateRecord;
+            candidateRecord.inputNames = record.inputNames;
+            candidateRecord.outputNames = record.outputNames;
+            candidateRecord.heldOutMetrics = measureColumnErrors(candidate.evaluateBatch(heldX), heldY);
+            const double kernelError = detail::heldOutError(candidateRecord), error = detail::heldOutError(record);
+            std::ostringstream verdict;
+            verdict << "automatic: kernel term alone (" << x.rows() << " centres, width " << choice->width
+                    << ", lambda " << choice->solution.lambda << ", leave-one-out relative RMSE "
+                    << choice->solution.error.relativeRmse << "): held-out relative RMSE " << kernelError
+                    << " against the layer-by-layer network's " << error;
+            if (kernelError < error) {
+                std::ostringstream settings;
+                settings << "kernel width = " << choice->width << "\nkernel lambda = " << choice->solution.lambda
+                         << "\nkernel input scales =";
+                for (Index j = 0; j < choice->scales.size(); ++j)
+                    settings << ' ' << choice->scales[j];
+                settings << "\n" << verdict.str() << ", kept; the network's settings were:\n" << record.settings;
+                candidateRecord.settings = settings.str();
+                candidate.setDomain(network.domain());
+                network = std::move(candidate);
+                record = std::move(candidateRecord);
+                kernel = std::move(choice);
+            } else {
+                record.settings += verdict.str() + ", not kept\n";
+            }
+        }
+    }
     bool compactChosen = false;
     if (!automatic.width && !automatic.layers && !automatic.tuneEpochs && !automatic.features &&
         !automatic.sampler && options.validationFraction > 0.0 &&
-        detail::heldOutError(record) > autoCompactThreshold &&
-        !(options.deadline && std::chrono::steady_clock::now() > *options.deadline)) {
-        // Step 8: a compact network trained by Adam, kept if it does better
+        detail::heldOutError(record) > autoCompactThreshold && !pastDeadline()) {
+        // Step 9: a compact network trained by Adam, kept if it does better
         // on the same held-out rows (same seed, same split).
         FitOptions compactOptions = detail::compactTunedOptions(options, training);
         compactOptions.progress = detail::reportedAs("compact", automatic.progress);
@@ -378,6 +579,7 @@ inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, cons
             record.settings += "automatic: " + verdict.str() + ", kept; the other network's settings were:\n" +
                                previous;
             compactChosen = true;
+            kernel.reset();
         } else {
             record.settings += "automatic: " + verdict.str() + ", not kept\n";
         }
@@ -387,10 +589,20 @@ inline Network autoFit(const MatrixView& inputs, const MatrixView& outputs, cons
     // targets fits the training rows and fails elsewhere (wing weight,
     // N = 1 000: test relative RMSE 1.8e-2 with the refit, 5.7e-4 without;
     // the suite's data gave 10 with it).
-    if (!compactChosen && options.validationFraction > 0.0 && training <= autoRefitRows &&
-        options.sampler == SamplerKind::gaussian &&
-        !(options.deadline && std::chrono::steady_clock::now() > *options.deadline)) {
-        // Step 9: the same settings, the layer count and tuning epochs found
+    if (kernel && !pastDeadline()) {
+        // Step 10 for a kernel term: the same widths on every row, lambda
+        // chosen again from the one found upwards (more rows, larger weights).
+        const OutputScaler outputScaler = OutputScaler::fromData(outputs);
+        if (std::optional<KernelTerm> all =
+                detail::refitKernelTerm(inputs, outputs, network.inputScaler(), outputScaler, *kernel)) {
+            Network refit = detail::kernelTermNetwork(network.inputScaler(), outputScaler, std::move(*all));
+            refit.setDomain(network.domain());
+            network = std::move(refit);
+            record.settings += "refit on all " + std::to_string(inputs.rows()) + " rows: kernel term\n";
+        }
+    } else if (!kernel && !compactChosen && options.validationFraction > 0.0 && training <= autoRefitRows &&
+               options.sampler == SamplerKind::gaussian && !pastDeadline()) {
+        // Step 10: the same settings, the layer count and tuning epochs found
         // above, fitted again on every row. The stored metrics and training
         // curve stay those of the fit with rows held out.
         FitOptions all = options;

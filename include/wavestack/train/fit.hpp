@@ -58,7 +58,7 @@ struct FitProgress {
     /// per Adam epoch (see `tuning`); "search": a trial fit of
     /// chooseFrequencyStddev (train/auto_settings.hpp), `layer` = trial index;
     /// "compact": any report of autoFit's compact network tuned by Adam
-    /// (its step 8); "refit": any report of autoFit's final fit on every row.
+    /// (its step 9); "refit": any report of autoFit's final fit on every row.
     std::string stage;
     Index layer = 0;               ///< 0 is the initial layer
     double seconds = 0.0;          ///< wall time since fit started
@@ -256,6 +256,29 @@ inline Matrix selectRows(const Matrix& data, const std::vector<Index>& rows, Ind
     return selected;
 }
 
+/// fit's split into held-out and training rows: rows order[0, held) are
+/// held out, the rest train. Without held-out rows `random` is not used.
+struct RowSplit {
+    std::vector<Index> order;
+    Index held = 0;
+};
+
+inline RowSplit splitRows(Index points, double validationFraction, Random& random)
+{
+    RowSplit split;
+    split.held = static_cast<Index>(std::ceil(validationFraction * double(points)));
+    if (split.held > 0)
+        split.order = shuffledRows(points, random);
+    return split;
+}
+
+/// The split fit(inputs, outputs, options) makes for options.seed: its first random draws.
+inline RowSplit splitRows(Index points, double validationFraction, std::uint64_t seed)
+{
+    Random random(seed);
+    return splitRows(points, validationFraction, random);
+}
+
 }  // namespace detail
 
 /// Fits a network to N samples: inputs N x d, outputs N x m (rows = points).
@@ -287,14 +310,14 @@ Network fit(const MatrixView& inputs, const MatrixView& outputs, const FitOption
 
     // Training and held-out rows.
     const Index points = inputs.rows();
-    const auto held = static_cast<Index>(std::ceil(options.validationFraction * double(points)));
+    const detail::RowSplit split = detail::splitRows(points, options.validationFraction, random);
+    const Index held = split.held;
     Matrix u = scaledInputs, y = scaledOutputs, heldU(0, inputs.cols()), heldY(0, outputs.cols());
     if (held > 0) {
-        const std::vector<Index> order = detail::shuffledRows(points, random);
-        u = detail::selectRows(scaledInputs, order, held, points);
-        y = detail::selectRows(scaledOutputs, order, held, points);
-        heldU = detail::selectRows(scaledInputs, order, 0, held);
-        heldY = detail::selectRows(scaledOutputs, order, 0, held);
+        u = detail::selectRows(scaledInputs, split.order, held, points);
+        y = detail::selectRows(scaledOutputs, split.order, held, points);
+        heldU = detail::selectRows(scaledInputs, split.order, 0, held);
+        heldY = detail::selectRows(scaledOutputs, split.order, 0, held);
     }
     auto rmse = [](const Matrix& residual) {
         return residual.size() > 0 ? std::sqrt(residual.squaredNorm() / double(residual.size())) : -1.0;
