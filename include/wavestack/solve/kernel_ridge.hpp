@@ -86,15 +86,9 @@ inline KernelRidgeSolution kernelRidge(const MatrixView& u, const MatrixView& y,
         const Vector diagonal = squares * inverse;  // [(K + lambda I)^-1]_ii
         const Matrix weights = q * (inverse.asDiagonal() * coefficients);
         LeaveOneOutError error;
-        for (Index c = 0; c < y.cols(); ++c) {
-            const Vector residuals = (weights.col(c).array() / diagonal.array()).square().matrix();
-            const double mse = residuals.mean(), rms = std::sqrt(mse);
-            const double spread = std::sqrt((residuals.array() - mse).square().sum() / double(n - 1));
-            const double unit = deviation[c] > 0.0 ? deviation[c] : 1.0;
-            error.relativeRmse += rms / unit / double(y.cols());
-            if (rms > 0.0)
-                error.standardError += spread / std::sqrt(double(n)) / (2.0 * rms) / unit / double(y.cols());
-        }
+        for (Index c = 0; c < y.cols(); ++c)
+            addLeaveOneOutOutput((weights.col(c).array() / diagonal.array()).square().matrix(), deviation[c],
+                                 y.cols(), error);
         // The errors above are exact for the decomposed matrix Q diag(e) Q^T,
         // which differs from K by rounding; predictions use K. Large weights
         // amplify that difference: the residual (K + lambda I) a - Y, zero
@@ -110,17 +104,8 @@ inline KernelRidgeSolution kernelRidge(const MatrixView& u, const MatrixView& y,
             error = {std::numeric_limits<double>::infinity(), 0.0};
         errors.push_back(error);
     }
-    std::size_t best = 0;
-    for (std::size_t i = 1; i < errors.size(); ++i)
-        if (errors[i].relativeRmse < errors[best].relativeRmse)
-            best = i;
-    // One-standard-error rule (Hastie, Tibshirani & Friedman, The Elements of
-    // Statistical Learning, 2009, sec. 7.10): smaller weights, same accuracy.
-    std::size_t chosen = best;
-    for (std::size_t i = 0; i < errors.size(); ++i)
-        if (lambdas[i] > lambdas[chosen] &&
-            errors[i].relativeRmse <= errors[best].relativeRmse + errors[best].standardError)
-            chosen = i;
+    // Smaller weights at the same accuracy (the one-standard-error rule).
+    const std::size_t chosen = oneStandardErrorChoice(errors, lambdas);
     KernelRidgeSolution solution;
     solution.error = errors[chosen];
     solution.lambda = lambdas[chosen];

@@ -54,6 +54,46 @@ struct LeaveOneOutError {
     double standardError = 0.0;
 };
 
+/// Adds one output's left-out residuals (`squares`: their squares, one per
+/// row) to `error`, averaged over `outputs` outputs, in units of the
+/// output's standard deviation `deviation`.
+inline void addLeaveOneOutOutput(const Vector& squares, double deviation, Index outputs, LeaveOneOutError& error)
+{
+    const Index points = squares.size();
+    const double mse = squares.mean();
+    const double spread = std::sqrt((squares.array() - mse).square().sum() / double(points - 1));
+    const double rms = std::sqrt(mse);
+    const double unit = deviation > 0.0 ? deviation : 1.0;
+    error.relativeRmse += rms / unit / double(outputs);
+    if (rms > 0.0)
+        error.standardError += spread / std::sqrt(double(points)) / (2.0 * rms) / unit / double(outputs);
+}
+
+/// The first entry with the lowest relativeRmse.
+inline std::size_t lowestError(const std::vector<LeaveOneOutError>& errors)
+{
+    std::size_t best = 0;
+    for (std::size_t i = 1; i < errors.size(); ++i)
+        if (errors[i].relativeRmse < errors[best].relativeRmse)
+            best = i;
+    return best;
+}
+
+/// One-standard-error rule (Hastie, Tibshirani & Friedman, The Elements of
+/// Statistical Learning, 2009, sec. 7.10): the index of the strongest lambda
+/// whose error is within one standard error of the lowest.
+inline std::size_t oneStandardErrorChoice(const std::vector<LeaveOneOutError>& errors,
+                                          const std::vector<double>& lambdas)
+{
+    const std::size_t best = lowestError(errors);
+    std::size_t chosen = best;
+    for (std::size_t i = 0; i < errors.size(); ++i)
+        if (lambdas[i] > lambdas[chosen] &&
+            errors[i].relativeRmse <= errors[best].relativeRmse + errors[best].standardError)
+            chosen = i;
+    return chosen;
+}
+
 /// Which matrix RidgeLeaveOneOut decomposes: the features (lambdas down to
 /// about 1e-30 of the largest eigenvalue) or their Gram matrix (down to
 /// about 1e-14; faster when N >> P).
@@ -115,18 +155,10 @@ public:
             const Matrix fitted = m_basis * (weight.asDiagonal() * m_coefficients);
             LeaveOneOutError error;
             const bool measurable = (leverage.array() < 1.0 - 1e-10).all() && std::isfinite(leverage.sum());
-            for (Index c = 0; measurable && c < targets.cols(); ++c) {
-                const Vector squares =
-                    ((targets.col(c) - fitted.col(c)).array() / (1.0 - leverage.array())).square().matrix();
-                const double mse = squares.mean();
-                const double spread = std::sqrt((squares.array() - mse).square().sum() / double(points - 1));
-                const double rms = std::sqrt(mse);
-                const double unit = deviation[c] > 0.0 ? deviation[c] : 1.0;
-                error.relativeRmse += rms / unit / double(targets.cols());
-                if (rms > 0.0)
-                    error.standardError +=
-                        spread / std::sqrt(double(points)) / (2.0 * rms) / unit / double(targets.cols());
-            }
+            for (Index c = 0; measurable && c < targets.cols(); ++c)
+                addLeaveOneOutOutput(
+                    ((targets.col(c) - fitted.col(c)).array() / (1.0 - leverage.array())).square().matrix(),
+                    deviation[c], targets.cols(), error);
             if (!measurable || !std::isfinite(error.relativeRmse) || !std::isfinite(error.standardError))
                 error = {std::numeric_limits<double>::infinity(), 0.0};
             result.push_back(error);

@@ -181,18 +181,8 @@ private:
         Outcome outcome{std::numeric_limits<double>::infinity(), m_lambdas.front()};
         try {
             const std::vector<LeaveOneOutError> errors = RidgeLeaveOneOut().errors(features, m_y, m_lambdas, m_path);
-            std::size_t best = 0;
-            for (std::size_t i = 0; i < errors.size(); ++i)
-                if (errors[i].relativeRmse < errors[best].relativeRmse)
-                    best = i;
-            outcome.error = errors[best].relativeRmse;
-            // One-standard-error rule (Hastie, Tibshirani & Friedman, The Elements of
-            // Statistical Learning, 2009, sec. 7.10): the strongest lambda whose error
-            // is within one standard error of the lowest.
-            outcome.lambda = m_lambdas[best];
-            for (std::size_t i = 0; i < errors.size(); ++i)
-                if (m_lambdas[i] > outcome.lambda && errors[i].relativeRmse <= outcome.error + errors[best].standardError)
-                    outcome.lambda = m_lambdas[i];
+            outcome.error = errors[lowestError(errors)].relativeRmse;
+            outcome.lambda = m_lambdas[oneStandardErrorChoice(errors, m_lambdas)];
         } catch (const NumericalError&) {
         }
         return outcome;
